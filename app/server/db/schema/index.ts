@@ -1,0 +1,2 @@
+export * from "./accounts.ts";
+export * from "./audit.ts";

@@ -1,0 +1,25 @@
+import { eq } from "drizzle-orm";
+import { db } from "../db.server.ts";
+import { labs, memberships, users } from "../db/schema/index.ts";
+import { recordAudit } from "../audit.server.ts";
+import { hashPassword } from "../password.server.ts";
+import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "./accounts.ts";
+
+export const DEMO_LAB_NAME = "Harrow Vale Edge Lab (invented demo)";
+
+/** Creates the invented demo lab once; every part of it is generated and labelled as invented. */
+export async function loadDemoData(): Promise<{ created: boolean; labId: string }> {
+  const existing = await db().select({ id: labs.id }).from(labs).where(eq(labs.isDemo, true)).limit(1);
+  if (existing[0]) return { created: false, labId: existing[0].id };
+  const hashes = await Promise.all(DEMO_ACCOUNTS.map(() => hashPassword(DEMO_PASSWORD)));
+  return db().transaction(async (tx) => {
+    const [lab] = await tx.insert(labs).values({ name: DEMO_LAB_NAME, isDemo: true }).returning();
+    await recordAudit(tx, { labId: lab.id, actorId: null, action: "lab.created", objectType: "lab", objectId: lab.id, details: { demo: true } });
+    for (const [i, account] of DEMO_ACCOUNTS.entries()) {
+      const [user] = await tx.insert(users).values({ email: account.email, name: account.name, passwordHash: hashes[i] }).returning();
+      await tx.insert(memberships).values({ labId: lab.id, userId: user.id, role: account.role });
+      await recordAudit(tx, { labId: lab.id, actorId: null, action: "member.joined", objectType: "user", objectId: user.id, details: { role: account.role, demo: true } });
+    }
+    return { created: true, labId: lab.id };
+  });
+}

@@ -1,0 +1,17 @@
+import { labsOfUser } from "./accounts.server.ts";
+import { getSessionUser } from "./session.server.ts";
+
+// What the app shell needs to know about the signed-in person: nothing more.
+export type ShellUser = {
+  name: string;
+  currentLab: { id: string; name: string } | null;
+  labCount: number;
+};
+
+export async function getOptionalShellUser(request: Request, labId?: string): Promise<ShellUser | null> {
+  const user = await getSessionUser(request);
+  if (!user) return null;
+  const labs = await labsOfUser(user.id);
+  const current = labs.find((l) => l.id === labId) ?? (labs.length === 1 ? labs[0] : null);
+  return { name: user.name, currentLab: current ? { id: current.id, name: current.name } : null, labCount: labs.length };
+}

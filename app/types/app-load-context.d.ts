@@ -1,0 +1,7 @@
+import "react-router";
+
+declare module "react-router" {
+  interface AppLoadContext {
+    cspNonce?: string;
+  }
+}
