@@ -1,0 +1,162 @@
+/**
+ * Distribution functions used by the statistics core. jstat supplies the
+ * incomplete beta and gamma functions and the quantile searches; the tail
+ * probabilities are computed here in forms that keep their relative accuracy
+ * far into the tails (jstat's own erfc is 1 - erf, which does not).
+ */
+import jStat from "jstat";
+import { assertFiniteNumber } from "./validate.ts";
+
+const LN_SQRT_2PI = 0.91893853320467274178;
+
+/**
+ * Upper tail of the standard normal distribution, Q(z) = 1 - Phi(z).
+ * For |z| <= 3 the Taylor series of Marsaglia (2004), "Evaluating the normal
+ * distribution", J. Stat. Softw. 11(4); beyond that the continued fraction of
+ * the Mills ratio (Abramowitz & Stegun 1964, 26.2.14), evaluated by Lentz's method.
+ * @param z any finite number
+ * @throws Error when z is not finite
+ */
+export function normalUpperTail(z: number): number {
+  assertFiniteNumber(z, "normalUpperTail: z");
+  if (z < -3) return 1 - normalUpperTail(-z);
+  if (z <= 3) {
+    let s = z;
+    let t = 0;
+    let b = z;
+    const q = z * z;
+    let i = 1;
+    while (s !== t) {
+      t = s;
+      i += 2;
+      b *= q / i;
+      s = t + b;
+    }
+    return 0.5 - s * Math.exp(-0.5 * q - LN_SQRT_2PI);
+  }
+  // Q(z) = phi(z) / (z + 1/(z + 2/(z + 3/(z + ...)))) (continued fraction, Lentz).
+  const tiny = 1e-300;
+  let f = z;
+  let c = z;
+  let d = 0;
+  for (let k = 1; k < 500; k++) {
+    d = z + k * d;
+    d = d === 0 ? tiny : d;
+    c = z + k / c;
+    c = c === 0 ? tiny : c;
+    d = 1 / d;
+    const delta = c * d;
+    f *= delta;
+    if (Math.abs(delta - 1) < 1e-16) break;
+  }
+  return Math.exp(-0.5 * z * z - LN_SQRT_2PI) / f;
+}
+
+/**
+ * Standard normal CDF, Phi(z).
+ * @throws Error when z is not finite
+ */
+export function normalCdf(z: number): number {
+  return z < 0 ? normalUpperTail(-z) : 1 - normalUpperTail(z);
+}
+
+/**
+ * Standard normal quantile Phi^-1(p), by jstat's inverse, refined by Newton steps
+ * on the accurate CDF above.
+ * @param p probability strictly between 0 and 1
+ * @throws Error when p is outside (0, 1)
+ */
+export function normalQuantile(p: number): number {
+  if (!(p > 0 && p < 1)) throw new Error(`normalQuantile: p must be strictly between 0 and 1, got ${p}`);
+  let x = jStat.normal.inv(p, 0, 1);
+  for (let i = 0; i < 3; i++) {
+    const err = (p < 0.5 ? normalCdf(x) - p : p - (1 - normalUpperTail(x)));
+    const dens = Math.exp(-0.5 * x * x - LN_SQRT_2PI);
+    if (dens === 0) break;
+    x -= err / dens;
+  }
+  return x;
+}
+
+/**
+ * Lower tail P(T <= t) of Student's t with df degrees of freedom, from the
+ * regularized incomplete beta function: P(T <= -|t|) = I_{df/(df+t^2)}(df/2, 1/2) / 2
+ * (Abramowitz & Stegun 1964, 26.7.1 and 26.5.27).
+ * @param t statistic
+ * @param df degrees of freedom > 0 (need not be an integer, as in Welch's test)
+ * @throws Error when t or df is not finite or df <= 0
+ */
+export function studentTCdf(t: number, df: number): number {
+  assertFiniteNumber(t, "studentTCdf: t");
+  assertFiniteNumber(df, "studentTCdf: df");
+  if (df <= 0) throw new Error(`studentTCdf: df must be positive, got ${df}`);
+  const tail = 0.5 * jStat.ibeta(df / (df + t * t), df / 2, 0.5);
+  return t <= 0 ? tail : 1 - tail;
+}
+
+/**
+ * Two-sided p-value of a t statistic, 2 P(T >= |t|), computed without cancellation.
+ * @throws Error as studentTCdf
+ */
+export function studentTTwoSidedP(t: number, df: number): number {
+  return Math.min(1, 2 * studentTCdf(-Math.abs(t), df));
+}
+
+/**
+ * Quantile of Student's t with df degrees of freedom (jstat's inverse of the
+ * incomplete beta, refined by Newton steps on studentTCdf).
+ * @param p probability strictly between 0 and 1
+ * @param df degrees of freedom > 0
+ * @throws Error when p is outside (0, 1) or df <= 0
+ */
+export function studentTQuantile(p: number, df: number): number {
+  if (!(p > 0 && p < 1)) throw new Error(`studentTQuantile: p must be strictly between 0 and 1, got ${p}`);
+  assertFiniteNumber(df, "studentTQuantile: df");
+  if (df <= 0) throw new Error(`studentTQuantile: df must be positive, got ${df}`);
+  let x = jStat.studentt.inv(p, df);
+  for (let i = 0; i < 3; i++) {
+    const dens = jStat.studentt.pdf(x, df);
+    if (!(dens > 0) || !Number.isFinite(x)) break;
+    const step = (studentTCdf(x, df) - p) / dens;
+    x -= step;
+    if (Math.abs(step) < 1e-14 * Math.max(1, Math.abs(x))) break;
+  }
+  return x;
+}
+
+/**
+ * Upper tail P(X >= x) of the chi-square distribution with df degrees of freedom.
+ * df = 1 uses 2 Q(sqrt x) for accuracy; other df use jstat's regularized gamma.
+ * @throws Error when x < 0, df <= 0 or either is not finite
+ */
+export function chiSquareUpperTail(x: number, df: number): number {
+  assertFiniteNumber(x, "chiSquareUpperTail: x");
+  assertFiniteNumber(df, "chiSquareUpperTail: df");
+  if (x < 0) throw new Error(`chiSquareUpperTail: x must be >= 0, got ${x}`);
+  if (df <= 0) throw new Error(`chiSquareUpperTail: df must be positive, got ${df}`);
+  if (df === 1) return 2 * normalUpperTail(Math.sqrt(x));
+  if (df === 2) return Math.exp(-x / 2);
+  return Math.max(0, 1 - jStat.chisquare.cdf(x, df));
+}
+
+/**
+ * Natural log of the gamma function (jstat).
+ * @throws Error when x <= 0 or not finite
+ */
+export function logGamma(x: number): number {
+  assertFiniteNumber(x, "logGamma: x");
+  if (x <= 0) throw new Error(`logGamma: x must be positive, got ${x}`);
+  return jStat.gammaln(x);
+}
+
+/**
+ * Regularized incomplete beta function I_x(a, b) (jstat).
+ * @throws Error when x is outside [0, 1] or a, b <= 0
+ */
+export function incompleteBeta(x: number, a: number, b: number): number {
+  if (!(x >= 0 && x <= 1)) throw new Error(`incompleteBeta: x must be in [0, 1], got ${x}`);
+  if (!(a > 0 && b > 0)) throw new Error(`incompleteBeta: a and b must be positive, got ${a}, ${b}`);
+  if (x === 0) return 0;
+  if (x === 1) return 1;
+  return jStat.ibeta(x, a, b);
+}
