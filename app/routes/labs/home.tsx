@@ -31,8 +31,10 @@ export default function LabHome({ loaderData }: Route.ComponentProps) {
           <>
             <Tile to={`/labs/${lab.id}/members`} title="Members" text={`${memberCount} member${memberCount === 1 ? "" : "s"} and their roles`} />
             <Tile to={`/labs/${lab.id}/invitations`} title="Invitations" text="Invite by e-mail; see pending, accepted and expired invitations" />
+            <Tile to={`/labs/${lab.id}/blades`} title="Library" text="Blades, cut media and lots, instruments and calibration" />
           </>
         ) : null}
+        <Tile to={`/labs/${lab.id}/protocols`} title="Protocols" text={manage ? "Write, publish and compare cut-test protocols" : "Read and print the lab's published protocols"} />
         <Tile to="/labs?all" title="Switch lab" text="Your other labs" />
       </ul>
     </div>

@@ -4,6 +4,8 @@ import { labs, memberships, users } from "../db/schema/index.ts";
 import { recordAudit } from "../audit.server.ts";
 import { hashPassword } from "../password.server.ts";
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "./accounts.ts";
+import { loadDemoLibrary } from "./library.server.ts";
+import { loadDemoProtocols } from "./protocols.server.ts";
 
 export const DEMO_LAB_NAME = "Harrow Vale Edge Lab (invented demo)";
 
@@ -15,11 +17,15 @@ export async function loadDemoData(): Promise<{ created: boolean; labId: string 
   return db().transaction(async (tx) => {
     const [lab] = await tx.insert(labs).values({ name: DEMO_LAB_NAME, isDemo: true }).returning();
     await recordAudit(tx, { labId: lab.id, actorId: null, action: "lab.created", objectType: "lab", objectId: lab.id, details: { demo: true } });
+    const people: Record<string, string> = {};
     for (const [i, account] of DEMO_ACCOUNTS.entries()) {
       const [user] = await tx.insert(users).values({ email: account.email, name: account.name, passwordHash: hashes[i] }).returning();
+      people[account.email] = user.id;
       await tx.insert(memberships).values({ labId: lab.id, userId: user.id, role: account.role });
       await recordAudit(tx, { labId: lab.id, actorId: null, action: "member.joined", objectType: "user", objectId: user.id, details: { role: account.role, demo: true } });
     }
+    const library = await loadDemoLibrary(tx, lab.id, people["lead@demo.test"]);
+    await loadDemoProtocols(tx, lab.id, people["lead@demo.test"], library);
     return { created: true, labId: lab.id };
   });
 }
