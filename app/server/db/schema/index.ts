@@ -2,3 +2,4 @@ export * from "./accounts.ts";
 export * from "./audit.ts";
 export * from "./library.ts";
 export * from "./protocols.ts";
+export * from "./studies.ts";
