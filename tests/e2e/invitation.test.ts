@@ -29,7 +29,7 @@ describe("invitation by e-mail", () => {
     await page.getByLabel("E-mail").fill(email);
     await page.getByLabel("Role").selectOption("tester");
     await page.getByRole("button", { name: "Send the invitation" }).click();
-    await expect(page.getByRole("status").filter({ hasText: "Invitation sent" }).textContent()).resolves.toContain(email);
+    await page.getByRole("status").filter({ hasText: `Invitation sent to ${email}` }).waitFor();
     await screenshot(page, "invitations");
 
     const mail = await waitForMail(inject("mailDir"), email, /invited/);
@@ -43,8 +43,9 @@ describe("invitation by e-mail", () => {
     await page.getByLabel("Choose a password").fill("tester passphrase 1");
     await page.getByRole("button", { name: "Create my account and join" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
-    await expect(page.getByText("Your role: Tester").count()).resolves.toBe(1);
-    await expect(page.getByTestId("account-area").textContent()).resolves.toContain("Invited Tester");
+    // Playwright's locators wait for the page to render after the URL changes.
+    await page.getByText("Your role: Tester").waitFor();
+    await expect.poll(() => page.getByTestId("account-area").textContent()).toContain("Invited Tester");
     await screenshot(page, "lab-home-tester");
     expect(errors).toEqual([]);
   });

@@ -20,7 +20,7 @@ describe("landing page", () => {
     });
     const baseUrl = inject("baseUrl");
     await page.goto(baseUrl, { waitUntil: "networkidle" });
-    await expect(page.getByRole("heading", { level: 1 }).textContent()).resolves.toContain("Edge retention");
+    await page.getByRole("heading", { level: 1, name: /Edge retention/ }).waitFor();
     // The font comes from the app's own build, never from elsewhere.
     expect(fontResponses.length).toBeGreaterThan(0);
     for (const url of fontResponses) expect(url.startsWith(baseUrl)).toBe(true);

@@ -28,7 +28,7 @@ describe("protocol editor", () => {
     await page.getByRole("link", { name: /Protocols/ }).click();
     await page.waitForURL(/\/protocols$/);
     // The demo lab's published protocols are listed.
-    await expect(page.getByRole("link", { name: "Hand rope test (demo)" }).count()).resolves.toBe(1);
+    await page.getByRole("link", { name: "Hand rope test (demo)" }).waitFor();
     await page.getByRole("link", { name: "New protocol" }).click();
     await page.waitForURL(/\/protocols\/new$/);
     const name = `Keyboard reorder ${Date.now()}`;
@@ -38,8 +38,7 @@ describe("protocol editor", () => {
     await page.waitForURL(/\/protocols\/[0-9a-f-]{36}\/versions\/1$/);
     const editorUrl = page.url();
 
-    const before = await abrasives(page);
-    expect(before).toEqual(["Coarse bench stone", "Fine bench stone", "Plain leather strop"]);
+    await expect.poll(() => abrasives(page)).toEqual(["Coarse bench stone", "Fine bench stone", "Plain leather strop"]);
 
     // Drag and drop by keyboard: focus the handle, Space picks up, ArrowDown moves, Space drops.
     const handle = page.getByRole("button", { name: /^Drag step 1:/ });
@@ -61,7 +60,7 @@ describe("protocol editor", () => {
     await page.getByRole("status").filter({ hasText: "Draft saved" }).first().waitFor();
 
     await page.goto(editorUrl);
-    expect(await abrasives(page)).toEqual(["Fine bench stone", "Coarse bench stone", "Plain leather strop"]);
+    await expect.poll(() => abrasives(page)).toEqual(["Fine bench stone", "Coarse bench stone", "Plain leather strop"]);
 
     // The plain buttons do the same, without dragging.
     await page.getByRole("button", { name: /^Move step 3 up:/ }).click();
@@ -77,7 +76,7 @@ describe("protocol editor", () => {
     await screenshot(page, "protocol-editor-error");
 
     await page.goto(editorUrl);
-    expect(await abrasives(page)).toEqual(["Fine bench stone", "Coarse bench stone", "Plain leather strop"]);
+    await expect.poll(() => abrasives(page)).toEqual(["Fine bench stone", "Coarse bench stone", "Plain leather strop"]);
     // The refused save answers 400 on purpose; the browser logs that response, nothing else may appear.
     expect(errors.filter((e) => !/status of 400 \(Bad Request\)/.test(e))).toEqual([]);
     expect(errors.length).toBeLessThanOrEqual(1);
@@ -95,6 +94,7 @@ describe("protocol editor", () => {
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
     await page.getByRole("link", { name: /Protocols/ }).click();
     await page.waitForURL(/\/protocols$/);
+    await page.getByRole("link", { name: "Hand rope test (demo)" }).waitFor();
     await expect(page.getByText("demo draft").count()).resolves.toBe(0);
     await page.getByRole("link", { name: "Hand rope test (demo)" }).click();
     await page.getByRole("link", { name: "Bench page" }).first().click();
