@@ -24,6 +24,8 @@ export default [
     route(":labId/protocols/:protocolId/compare", "routes/protocols/compare.tsx"),
     route(":labId/protocols/:protocolId/versions/:version", "routes/protocols/version.tsx"),
     route(":labId/protocols/:protocolId/versions/:version/print", "routes/protocols/print.tsx"),
+    // planning
+    route(":labId/planning/sample-size", "routes/labs/planning/sample-size.tsx"),
     // library (owners and leads only)
     route(":labId/blades", "routes/library/blades.tsx"),
     route(":labId/blades/new", "routes/library/blade-new.tsx"),

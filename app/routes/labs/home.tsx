@@ -31,6 +31,7 @@ export default function LabHome({ loaderData }: Route.ComponentProps) {
           <>
             <Tile to={`/labs/${lab.id}/members`} title="Members" text={`${memberCount} member${memberCount === 1 ? "" : "s"} and their roles`} />
             <Tile to={`/labs/${lab.id}/invitations`} title="Invitations" text="Invite by e-mail; see pending, accepted and expired invitations" />
+            <Tile to={`/labs/${lab.id}/planning/sample-size`} title="Sample size" text="Blades a study needs, from the SD, the difference that matters, alpha and power" />
             <Tile to={`/labs/${lab.id}/blades`} title="Library" text="Blades, cut media and lots, instruments and calibration" />
           </>
         ) : null}
