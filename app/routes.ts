@@ -39,6 +39,15 @@ export default [
     route(":labId/instruments/:instrumentId", "routes/library/instrument.tsx"),
     route(":labId/uploads", "routes/api/uploads.ts"),
     route(":labId/files/:fileId", "routes/api/file.ts"),
+    // results (owners, leads and analysts)
+    route(":labId/results", "routes/results/list.tsx"),
+    route(":labId/studies/:studyId/results", "routes/results/study-results.tsx"),
+    route(":labId/studies/:studyId/results/unblind", "routes/results/unblind.tsx"),
+    route(":labId/studies/:studyId/report", "routes/results/report.tsx"),
+    route(":labId/api/studies/:studyId/analysis.json", "routes/api/study-analysis.ts"),
+    route(":labId/api/studies/:studyId/readings.csv", "routes/api/study-readings-csv.ts"),
+    route(":labId/api/studies/:studyId/outcomes.csv", "routes/api/study-outcomes-csv.ts"),
+    route(":labId/api/studies/:studyId/bundle.json", "routes/api/study-bundle.ts"),
   ]),
 
   route("dev/mail", "routes/dev/mail.tsx"),

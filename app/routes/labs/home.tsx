@@ -35,6 +35,7 @@ export default function LabHome({ loaderData }: Route.ComponentProps) {
             <Tile to={`/labs/${lab.id}/blades`} title="Library" text="Blades, cut media and lots, instruments and calibration" />
           </>
         ) : null}
+        {role !== "tester" ? <Tile to={`/labs/${lab.id}/results`} title="Results" text="Closed studies: blinded results, unblinding, reports and exports" /> : null}
         <Tile to={`/labs/${lab.id}/protocols`} title="Protocols" text={manage ? "Write, publish and compare cut-test protocols" : "Read and print the lab's published protocols"} />
         <Tile to="/labs?all" title="Switch lab" text="Your other labs" />
       </ul>

@@ -5,6 +5,7 @@ import { recordAudit } from "../audit.server.ts";
 import { hashPassword } from "../password.server.ts";
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "./accounts.ts";
 import { loadDemoLibrary } from "./library.server.ts";
+import { loadDemoStudies } from "./studies.server.ts";
 import { loadDemoProtocols } from "./protocols.server.ts";
 
 export const DEMO_LAB_NAME = "Harrow Vale Edge Lab (invented demo)";
@@ -25,7 +26,8 @@ export async function loadDemoData(): Promise<{ created: boolean; labId: string 
       await recordAudit(tx, { labId: lab.id, actorId: null, action: "member.joined", objectType: "user", objectId: user.id, details: { role: account.role, demo: true } });
     }
     const library = await loadDemoLibrary(tx, lab.id, people["lead@demo.test"]);
-    await loadDemoProtocols(tx, lab.id, people["lead@demo.test"], library);
+    const protocols = await loadDemoProtocols(tx, lab.id, people["lead@demo.test"], library);
+    await loadDemoStudies(tx, lab.id, { leadId: people["lead@demo.test"], testerIds: [people["tester@demo.test"], people["tester2@demo.test"]] }, library, protocols);
     return { created: true, labId: lab.id };
   });
 }

@@ -1,0 +1,140 @@
+import { FormAlert } from "./form.tsx";
+import { armLabel, fmt, fmtInterval, fmtP, fmtPercent } from "~/lib/format.ts";
+import type { resultsView } from "~/server/analysis/results.server.ts";
+
+export type ResultsView = ReturnType<typeof resultsView>;
+
+/** The results as tables: arm summary, comparisons, within-blade differences, warnings. */
+export function ResultsTables({ view }: { view: ResultsView }) {
+  const unit = view.outcome.unit;
+  return (
+    <div className="grid gap-8">
+      {view.error ? <FormAlert message={`The analysis could not be completed: ${view.error}`} /> : null}
+      {view.warnings.length ? (
+        <ul className="rounded border-l-4 border-signal bg-signal-soft p-3" aria-label="Warnings">
+          {view.warnings.map((w) => (
+            <li key={w} className="font-bold text-graphite-950"><span aria-hidden="true" className="text-signal">▲ </span>{w}</li>
+          ))}
+        </ul>
+      ) : null}
+      {view.arms.length ? (
+        <section aria-labelledby="arm-summary">
+          <h2 id="arm-summary" className="mb-1 text-xl font-bold">{view.outcome.label} by arm ({unit})</h2>
+          <p className="mb-3 text-graphite-600">Blade is the unit: each blade's replicates are averaged first. {view.nBlades} blades, {view.nRuns} runs.</p>
+          <div className="overflow-x-auto">
+            <table className="figures w-full border-collapse text-left" data-testid="arm-table">
+              <thead>
+                <tr className="border-b-2 border-graphite-800">
+                  <th scope="col" className="py-2 pr-3">Arm</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Blades</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Runs</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Mean</th>
+                  <th scope="col" className="py-2 pr-3 text-right">SD</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Median</th>
+                  <th scope="col" className="py-2 pr-3">95 % t-interval</th>
+                  <th scope="col" className="py-2 pr-3">95 % bootstrap</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Censored</th>
+                </tr>
+              </thead>
+              <tbody>
+                {view.arms.map((a) => (
+                  <tr key={a.arm.key} className="border-b border-rule">
+                    <th scope="row" className="py-2 pr-3 font-bold" data-testid="arm-label">{armLabel(a.arm)}</th>
+                    <td className="py-2 pr-3 text-right">{a.nBlades}</td>
+                    <td className="py-2 pr-3 text-right">{a.nRuns}</td>
+                    <td className="py-2 pr-3 text-right">{a.lowerBound ? "≥ " : ""}{fmt(a.mean, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmt(a.sd, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmt(a.median, 2)}</td>
+                    <td className="py-2 pr-3">{fmtInterval(a.tInterval, 2)}</td>
+                    <td className="py-2 pr-3">{fmtInterval(a.bootstrap, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmtPercent(a.censoredShare)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </section>
+      ) : null}
+      {view.comparisons.length ? (
+        <section aria-labelledby="comparisons">
+          <h2 id="comparisons" className="mb-3 text-xl font-bold">Comparisons</h2>
+          <div className="overflow-x-auto">
+            <table className="figures w-full border-collapse text-left" data-testid="comparison-table">
+              <thead>
+                <tr className="border-b-2 border-graphite-800">
+                  <th scope="col" className="py-2 pr-3">Comparison</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Difference ({unit})</th>
+                  <th scope="col" className="py-2 pr-3">95 % interval</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Hedges' g</th>
+                  <th scope="col" className="py-2 pr-3">95 % interval of g</th>
+                  <th scope="col" className="py-2 pr-3 text-right">p</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Holm p</th>
+                  <th scope="col" className="py-2 pr-3">Method</th>
+                </tr>
+              </thead>
+              <tbody>
+                {view.comparisons.map((c) => (
+                  <tr key={`${c.a.key}-${c.b.key}`} className="border-b border-rule align-top">
+                    <th scope="row" className="py-2 pr-3 font-bold">{armLabel(c.a)} − {armLabel(c.b)}</th>
+                    <td className="py-2 pr-3 text-right">{fmt(c.difference, 2)}</td>
+                    <td className="py-2 pr-3">{fmtInterval(c.differenceInterval, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmt(c.g, 2)}</td>
+                    <td className="py-2 pr-3">{fmtInterval(c.gInterval, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmtP(c.p)}</td>
+                    <td className="py-2 pr-3 text-right">{fmtP(c.pHolm)}</td>
+                    <td className="py-2 pr-3 text-sm">
+                      {c.method} (df {fmt(c.df, 1)}); {c.gMethod}; Mann–Whitney p {fmtP(c.mannWhitneyP)} ({c.mannWhitneyMethod}), Holm {fmtP(c.mannWhitneyPHolm)}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+          {view.logRank ? (
+            <p className="mt-3">
+              Log-rank test over runs: χ² = <span className="figures">{fmt(view.logRank.chiSquare, 2)}</span> on {view.logRank.df} df, p = <span className="figures">{fmtP(view.logRank.p)}</span>. {view.survivalNote}
+            </p>
+          ) : null}
+        </section>
+      ) : null}
+      {view.withinBlade.length ? (
+        <section aria-labelledby="within">
+          <h2 id="within" className="mb-1 text-xl font-bold">Within-blade differences ({unit})</h2>
+          <p className="mb-3 text-graphite-600">The per-blade difference between conditions is the unit.</p>
+          <div className="overflow-x-auto">
+            <table className="figures w-full border-collapse text-left" data-testid="within-table">
+              <thead>
+                <tr className="border-b-2 border-graphite-800">
+                  <th scope="col" className="py-2 pr-3">Conditions</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Blades</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Mean difference</th>
+                  <th scope="col" className="py-2 pr-3">95 % paired t interval</th>
+                  <th scope="col" className="py-2 pr-3 text-right">d_z</th>
+                  <th scope="col" className="py-2 pr-3">95 % interval of d_z</th>
+                  <th scope="col" className="py-2 pr-3 text-right">p (paired t)</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Holm p</th>
+                  <th scope="col" className="py-2 pr-3">Wilcoxon signed-rank</th>
+                </tr>
+              </thead>
+              <tbody>
+                {view.withinBlade.map((w) => (
+                  <tr key={`${w.a.key}-${w.b.key}`} className="border-b border-rule">
+                    <th scope="row" className="py-2 pr-3 font-bold" data-testid="arm-label">{armLabel(w.a)} − {armLabel(w.b)}</th>
+                    <td className="py-2 pr-3 text-right">{w.nBlades}</td>
+                    <td className="py-2 pr-3 text-right">{fmt(w.meanDifference, 2)}</td>
+                    <td className="py-2 pr-3">{fmtInterval(w.pairedInterval, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmt(w.dz, 2)}</td>
+                    <td className="py-2 pr-3">{fmtInterval(w.dzInterval, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{fmtP(w.p)}</td>
+                    <td className="py-2 pr-3 text-right">{fmtP(w.pHolm)}</td>
+                    <td className="py-2 pr-3 text-sm">p {fmtP(w.wilcoxonP)} ({w.wilcoxonMethod})</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </section>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,208 @@
+/**
+ * The whole analysis of one study, from its raw data: per-run outcomes (the stop
+ * rule module), the primary outcome per run, arm summaries with blade as the unit,
+ * comparisons, survival, and the curves the charts draw. Arms are keyed by their
+ * neutral labels (Arm A, Arm B, ...), so the analysis is the same before and after
+ * unblinding: unblinding only adds names beside the labels. Plain TypeScript, no I/O,
+ * so the re-analysis command recomputes exactly what the app stored.
+ */
+import { cardRunOutcomes, forceRunOutcomes, resolveCorrections, type ForceProtocol, type ForceReading, type ForceRunOutcomes, type CardRunOutcomes } from "./outcomes.ts";
+import { analyzeParallelArms, analyzeWithinBlade, type ParallelAnalysis, type RunOutcomeRecord, type WithinBladeAnalysis } from "./stats/arm-analysis.ts";
+import { holmAdjust } from "./stats/holm.ts";
+
+export const ANALYSIS_VERSION = 1;
+
+export const PRIMARY_OUTCOMES = {
+  cuts_to_threshold: { label: "Cuts to threshold", unit: "cuts", kind: "edge_force" },
+  working_sharpness: { label: "Working sharpness", unit: "gf", kind: "edge_force" },
+  baseline_sharpness: { label: "Baseline sharpness", unit: "gf", kind: "edge_force" },
+  loss_rate: { label: "Loss rate", unit: "gf per cut", kind: "edge_force" },
+  initial_cutting_performance: { label: "Initial cutting performance", unit: "mm", kind: "card_depth" },
+  total_card_cut: { label: "Total card cut", unit: "mm", kind: "card_depth" },
+} as const;
+export type PrimaryOutcome = keyof typeof PRIMARY_OUTCOMES;
+
+export type AnalysisRun = {
+  runId: string;
+  /** The blade's blind code in this study: the blade's key in the analysis. */
+  bladeKey: string;
+  /** The neutral label of the run's arm or condition. */
+  armKey: string;
+  replicate: number;
+  state: "ended_threshold" | "censored" | "withdrawn" | "waiting" | "in_progress";
+  withdrawnReason: string | null;
+  /** Readings of the run's last attempt, corrections included (the latest version is used). */
+  readings: (ForceReading & { id: string; supersedes?: string | null })[];
+};
+
+export type StudyAnalysisInput = {
+  design: "parallel" | "within_blade";
+  measurementKind: "edge_force" | "card_depth";
+  primaryOutcome: PrimaryOutcome;
+  forceProtocol: ForceProtocol | null;
+  card: { strokes: number; initialStrokes: number; initialPassMark: number | null; totalPassMark: number | null } | null;
+  alpha: number;
+  comparisons: "all_pairs" | "vs_reference";
+  referenceArmKey: string | null;
+  /** Seeds the bootstrap: the study's seed, so the intervals are reproducible. */
+  seed: string;
+  armKeys: string[];
+  runs: AnalysisRun[];
+};
+
+export type RunResult = {
+  runId: string;
+  bladeKey: string;
+  armKey: string;
+  replicate: number;
+  state: AnalysisRun["state"];
+  withdrawnReason: string | null;
+  force: ForceRunOutcomes | null;
+  card: CardRunOutcomes | null;
+  /** The primary outcome of the run, or null when it has none (withdrawn, failed, not ended). */
+  value: number | null;
+  censored: boolean;
+  curve: { cut: number; aggregate: number }[];
+  error: string | null;
+};
+
+export type StudyAnalysis = {
+  analysisVersion: number;
+  primaryOutcome: { key: PrimaryOutcome; label: string; unit: string };
+  design: StudyAnalysisInput["design"];
+  runs: RunResult[];
+  parallel: ParallelAnalysis | null;
+  withinBlade: { pairs: (WithinBladeAnalysis & { pPairedHolm: number | null })[] } | null;
+  armCurves: { armKey: string; points: { cut: number; mean: number; n: number }[] }[];
+  flow: { enrolledBlades: number; runs: number; analysed: number; endedAtThreshold: number; censored: number; withdrawn: { runId: string; bladeKey: string; reason: string }[]; excluded: { runId: string; reason: string }[] };
+  warnings: string[];
+  error: string | null;
+};
+
+function primaryValue(key: PrimaryOutcome, force: ForceRunOutcomes | null, card: CardRunOutcomes | null): { value: number | null; censored: boolean } {
+  switch (key) {
+    case "cuts_to_threshold":
+      return { value: force?.cutsToThreshold ?? null, censored: force?.censored ?? false };
+    case "working_sharpness":
+      return { value: force?.workingSharpness ?? null, censored: false };
+    case "baseline_sharpness":
+      return { value: force ? force.baseline : null, censored: false };
+    case "loss_rate":
+      return { value: force?.lossRate?.slope ?? null, censored: false };
+    case "initial_cutting_performance":
+      return { value: card?.initialCuttingPerformance ?? null, censored: false };
+    case "total_card_cut":
+      return { value: card?.totalCardCut ?? null, censored: false };
+  }
+}
+
+/** Per-run outcomes, in run order as given. */
+export function runResults(input: StudyAnalysisInput): RunResult[] {
+  return input.runs.map((run) => {
+    const base = { runId: run.runId, bladeKey: run.bladeKey, armKey: run.armKey, replicate: run.replicate, state: run.state, withdrawnReason: run.withdrawnReason };
+    if (run.state === "withdrawn" || run.state === "waiting" || run.state === "in_progress") {
+      return { ...base, force: null, card: null, value: null, censored: false, curve: [], error: null };
+    }
+    try {
+      if (input.measurementKind === "edge_force") {
+        const force = forceRunOutcomes(input.forceProtocol!, run.readings);
+        const { value, censored } = primaryValue(input.primaryOutcome, force, null);
+        return { ...base, force, card: null, value, censored, curve: force.checks.map((c) => ({ cut: c.cut, aggregate: c.aggregate })), error: null };
+      }
+      const c = input.card!;
+      const card = cardRunOutcomes(
+        resolveCorrections(run.readings).map((r) => ({ id: r.id, stroke: r.cut, value: r.value })),
+        { initialStrokes: c.initialStrokes, totalStrokes: c.strokes, initialPassMark: c.initialPassMark, totalPassMark: c.totalPassMark },
+      );
+      const { value } = primaryValue(input.primaryOutcome, null, card);
+      return { ...base, force: null, card, value, censored: false, curve: card.cumulative.map((v, i) => ({ cut: i + 1, aggregate: v })), error: null };
+    } catch (error) {
+      return { ...base, force: null, card: null, value: null, censored: false, curve: [], error: error instanceof Error ? error.message : String(error) };
+    }
+  });
+}
+
+function armCurves(runs: RunResult[], armKeys: string[]) {
+  return armKeys.map((armKey) => {
+    const byCut = new Map<number, number[]>();
+    for (const r of runs) if (r.armKey === armKey) for (const p of r.curve) byCut.set(p.cut, [...(byCut.get(p.cut) ?? []), p.aggregate]);
+    const points = [...byCut]
+      .sort((a, b) => a[0] - b[0])
+      .map(([cut, values]) => ({ cut, mean: values.reduce((s, v) => s + v, 0) / values.length, n: values.length }));
+    return { armKey, points };
+  });
+}
+
+/** The study's analysis; never throws for data problems: they come back as `error` and `warnings`. */
+export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
+  const meta = PRIMARY_OUTCOMES[input.primaryOutcome];
+  const runs = runResults(input);
+  const warnings: string[] = [];
+  const excluded: { runId: string; reason: string }[] = [];
+  for (const r of runs) {
+    if (r.error) excluded.push({ runId: r.runId, reason: r.error });
+    else if (r.state !== "withdrawn" && r.value === null) excluded.push({ runId: r.runId, reason: r.force?.failedSharpening ? "failed sharpening on its last attempt" : "no value for the primary outcome" });
+  }
+  if (excluded.length) warnings.push(`${excluded.length} run(s) are left out of the analysis: ${excluded.map((e) => e.reason).join("; ")}`);
+  const records: RunOutcomeRecord[] = runs
+    .filter((r) => r.value !== null)
+    .map((r) => ({ runId: r.runId, bladeId: r.bladeKey, arm: r.armKey, value: r.value!, censored: r.censored }));
+
+  let parallel: ParallelAnalysis | null = null;
+  let withinBlade: StudyAnalysis["withinBlade"] = null;
+  let error: string | null = null;
+  try {
+    if (records.length === 0) throw new Error("no run has a value for the primary outcome");
+    if (input.design === "parallel") {
+      parallel = analyzeParallelArms(records, {
+        seed: `${input.seed}/analysis`,
+        alpha: input.alpha,
+        mode: input.comparisons === "vs_reference" ? "vs-reference" : "all-pairs",
+        reference: input.comparisons === "vs_reference" ? (input.referenceArmKey ?? undefined) : undefined,
+        survival: input.primaryOutcome === "cuts_to_threshold",
+      });
+      // Arms in label order, so Arm A comes first everywhere.
+      parallel.arms.sort((a, b) => a.arm.localeCompare(b.arm));
+      warnings.push(...parallel.warnings);
+    } else {
+      const keys = [...input.armKeys].sort();
+      const pairs: WithinBladeAnalysis[] = [];
+      for (let i = 0; i < keys.length; i++) {
+        for (let j = i + 1; j < keys.length; j++) {
+          const subset = records.filter((r) => r.arm === keys[i] || r.arm === keys[j]);
+          pairs.push(analyzeWithinBlade(subset, { conditions: [keys[i], keys[j]] }));
+        }
+      }
+      const ps = pairs.map((p) => p.pairedT.value?.p ?? null);
+      const finite = ps.filter((p): p is number => p !== null);
+      const adjusted = finite.length ? holmAdjust(finite, input.alpha).adjusted : [];
+      let k = 0;
+      withinBlade = { pairs: pairs.map((p, i) => ({ ...p, pPairedHolm: ps[i] === null ? null : adjusted[k++] })) };
+      for (const p of pairs) warnings.push(...p.warnings);
+    }
+  } catch (e) {
+    error = e instanceof Error ? e.message : String(e);
+  }
+
+  const withdrawn = runs.filter((r) => r.state === "withdrawn").map((r) => ({ runId: r.runId, bladeKey: r.bladeKey, reason: r.withdrawnReason ?? "" }));
+  return {
+    analysisVersion: ANALYSIS_VERSION,
+    primaryOutcome: { key: input.primaryOutcome, label: meta.label, unit: meta.unit },
+    design: input.design,
+    runs,
+    parallel,
+    withinBlade,
+    armCurves: armCurves(runs, [...input.armKeys].sort()),
+    flow: {
+      enrolledBlades: new Set(input.runs.map((r) => r.bladeKey)).size,
+      runs: runs.length,
+      analysed: records.length,
+      endedAtThreshold: runs.filter((r) => r.force?.status === "ended-at-threshold").length,
+      censored: runs.filter((r) => r.censored).length,
+      withdrawn,
+      excluded,
+    },
+    warnings: [...new Set(warnings)],
+    error,
+  };
+}

@@ -1,0 +1,146 @@
+import { Link } from "react-router";
+import type { Route } from "./+types/report";
+import { ResultsTables } from "~/components/results-tables.tsx";
+import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
+import { armNames, resultsView } from "~/server/analysis/results.server.ts";
+import { reportDetails } from "~/server/analysis/report.server.ts";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `Report · ${data?.study.shortName ?? "Study"} · Blindcut` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { lab, record } = await requireStudyForResults(request, params.labId, params.studyId);
+  const analysis = closedAnalysis(record);
+  const names = armNames(record);
+  const { study } = record;
+  return {
+    lab,
+    study: {
+      id: study.id, shortName: study.shortName, question: study.question, hypothesis: study.hypothesis, design: study.design, state: study.state,
+      primaryOutcome: study.primaryOutcome, secondaryOutcomes: study.secondaryOutcomes, plan: study.analysisPlan,
+      startedAt: study.startedAt?.toISOString() ?? null, closedAt: study.closedAt?.toISOString() ?? null, unblindedAt: study.unblindedAt?.toISOString() ?? null,
+    },
+    arms: record.arms.map((a) => ({ label: a.neutralLabel ?? "", name: names?.get(a.neutralLabel ?? "")?.name ?? null, description: names?.get(a.neutralLabel ?? "")?.description ?? null })),
+    view: resultsView(analysis, names),
+    details: await reportDetails(record),
+    generatedAt: new Date().toISOString(),
+  };
+}
+
+const day = (iso: string | null) => (iso ? iso.slice(0, 16).replace("T", " ") + " UTC" : "—");
+
+export default function Report({ loaderData }: Route.ComponentProps) {
+  const { lab, study, arms, view, details } = loaderData;
+  const r = details.randomization;
+  return (
+    <article className="report mx-auto max-w-4xl print:max-w-none">
+      <p className="mb-4 print:hidden">
+        <Link to={`/labs/${lab.id}/studies/${study.id}/results`}>← Back to the results</Link> ·{" "}
+        <button type="button" onClick={() => window.print()} className="font-bold text-ink underline">Print or save as PDF</button>
+      </p>
+      <header className="border-b-2 border-graphite-800 pb-3">
+        <p className="text-sm font-bold tracking-widest text-graphite-600">BLINDCUT STUDY REPORT</p>
+        <h1 className="text-3xl font-bold">{study.shortName}</h1>
+        <p className="mt-1 text-graphite-600">
+          {lab.name} · {study.state === "unblinded" ? `unblinded ${day(study.unblindedAt)}` : "blinded"} · closed {day(study.closedAt)} · report generated {day(loaderData.generatedAt)}
+        </p>
+      </header>
+
+      <Section title="Question and hypothesis">
+        <p><strong>Question.</strong> {study.question}</p>
+        <p className="mt-1"><strong>Hypothesis.</strong> {study.hypothesis || "—"}</p>
+        <p className="mt-1"><strong>Primary outcome.</strong> {view.outcome.label} ({view.outcome.unit}). Secondary: {study.secondaryOutcomes.join(", ") || "none"}.</p>
+        <p className="mt-1"><strong>Analysis plan.</strong> alpha {study.plan?.alpha ?? "—"}, comparisons {study.plan?.comparisons === "vs_reference" ? "each arm against the reference" : "every pair"}, Holm's adjustment.</p>
+      </Section>
+
+      <Section title="Protocol">
+        {details.protocol ? (
+          <>
+            <p>{details.protocol.name}, version {details.protocol.version}. {details.protocol.stopRule} Replicates per blade: {details.protocol.replicates}.</p>
+            <p className="mt-1 text-sm">Content hash (SHA-256): <code className="break-all">{details.protocol.hash}</code></p>
+          </>
+        ) : <p>—</p>}
+      </Section>
+
+      <Section title="Design and randomization">
+        <p>
+          {study.design === "parallel" ? "Parallel arms" : "Within-blade conditions"}: {arms.map((a) => (a.name ? `${a.label} (${a.name}${a.description ? `: ${a.description}` : ""})` : a.label)).join("; ")}.
+        </p>
+        <p className="mt-1">
+          Run order: {r.settings?.method === "permuted_blocks" ? `permuted blocks of ${r.settings.blockSizes.join(" or ")} runs` : "complete randomization"}
+          {r.settings?.stratifyByTester ? ", stratified by tester" : ""}; sittings of {r.settings?.sittingLength ?? "—"} runs. Seed <code>{r.seed}</code>, algorithm version {r.algorithmVersion}.
+        </p>
+        <p className="mt-1 text-sm">Design hash <code className="break-all">{r.designHash}</code>; schedule hash <code className="break-all">{r.scheduleHash}</code>.</p>
+      </Section>
+
+      <Section title="Flow of blades and runs">
+        <table className="figures w-full border-collapse text-left" data-testid="flow-table">
+          <tbody>
+            <Row label="Blades enrolled" value={view.flow.enrolledBlades} />
+            <Row label="Runs scheduled" value={view.flow.runs} />
+            <Row label="Runs ended at the threshold" value={view.flow.endedAtThreshold} />
+            <Row label="Runs censored at the cap" value={view.flow.censored} />
+            <Row label="Runs withdrawn" value={view.flow.withdrawn.length} />
+            <Row label="Runs analysed" value={view.flow.analysed} />
+          </tbody>
+        </table>
+        {view.flow.withdrawn.length ? (
+          <ul className="mt-2 list-disc pl-6">
+            {view.flow.withdrawn.map((w) => <li key={w.runId}>Blade {w.bladeKey}: {w.reason}</li>)}
+          </ul>
+        ) : null}
+      </Section>
+
+      <Section title="Outcomes and comparisons">
+        <ResultsTables view={view} />
+      </Section>
+
+      <Section title="Deviations">
+        {details.deviations.length === 0 ? <p>None recorded.</p> : (
+          <ul className="list-disc pl-6">
+            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind.replace("_", " ")}: {d.note || "—"} ({day(d.at)})</li>)}
+          </ul>
+        )}
+      </Section>
+
+      <Section title="Instrument calibration">
+        <p>
+          {details.calibration.runsWithInstrument === 0
+            ? "No instrument was recorded for the runs."
+            : `${details.calibration.runsOnFlaggedInstrument} of ${details.calibration.runsWithInstrument} runs used an instrument that was flagged (last check failed or past its interval) when the run started.`}
+        </p>
+      </Section>
+
+      <Section title="Audit summary">
+        <table className="w-full border-collapse text-left text-sm">
+          <thead>
+            <tr className="border-b border-graphite-800"><th scope="col" className="py-1">When</th><th scope="col" className="py-1">What</th><th scope="col" className="py-1">Who</th><th scope="col" className="py-1">Event hash</th></tr>
+          </thead>
+          <tbody>
+            {details.audit.map((a, i) => (
+              <tr key={i} className="border-b border-rule"><td className="figures py-1">{day(a.at)}</td><td className="py-1">{a.action}</td><td className="py-1">{a.actor}</td><td className="py-1"><code>{a.hash.slice(0, 16)}…</code></td></tr>
+            ))}
+          </tbody>
+        </table>
+        <p className="mt-2 text-sm">Blinded analysis snapshot hash: <code className="break-all">{r.snapshotHash}</code></p>
+      </Section>
+    </article>
+  );
+}
+
+function Section({ title, children }: { title: string; children: React.ReactNode }) {
+  return (
+    <section className="mt-6 break-inside-avoid-page">
+      <h2 className="mb-2 border-b border-rule pb-1 text-xl font-bold">{title}</h2>
+      {children}
+    </section>
+  );
+}
+
+function Row({ label, value }: { label: string; value: number }) {
+  return (
+    <tr className="border-b border-rule">
+      <th scope="row" className="py-1 pr-4 font-normal">{label}</th>
+      <td className="py-1 font-bold">{value}</td>
+    </tr>
+  );
+}

@@ -1,0 +1,115 @@
+import { Form, Link, data, redirect } from "react-router";
+import type { Route } from "./+types/study-results";
+import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
+import { ResultsCharts } from "~/components/results-charts.tsx";
+import { ResultsTables } from "~/components/results-tables.tsx";
+import { requireLabRole, isUuid, notFound } from "~/server/access.server.ts";
+import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
+import { armNames, resultsView } from "~/server/analysis/results.server.ts";
+import { closeStudy, LifecycleError, mailAnalysts } from "~/server/analysis/lifecycle.server.ts";
+import type { ProtocolContent } from "~/domain/protocol.ts";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `Results · ${data?.study.shortName ?? "Study"} · Blindcut` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { lab, role, record } = await requireStudyForResults(request, params.labId, params.studyId);
+  const { study } = record;
+  const closed = study.state === "closed" || study.state === "unblinded";
+  const base = {
+    lab,
+    role,
+    study: { id: study.id, shortName: study.shortName, question: study.question, hypothesis: study.hypothesis, state: study.state, closedAt: study.closedAt?.toISOString() ?? null, unblindedAt: study.unblindedAt?.toISOString() ?? null, snapshotHash: study.snapshotHash },
+    threshold: (record.protocol?.content as ProtocolContent | undefined)?.edgeForce?.thresholdGf ?? null,
+  };
+  if (!closed) {
+    // While the study runs nobody sees outcomes: only how many runs are done.
+    const done = record.runs.filter((r) => r.state !== "waiting" && r.state !== "in_progress").length;
+    return { ...base, closed: false as const, progress: { done, total: record.runs.length }, view: null };
+  }
+  return { ...base, closed: true as const, progress: null, view: resultsView(closedAnalysis(record), armNames(record)) };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { lab, user } = await requireLabRole(request, params.labId, ["owner", "lead"]);
+  if (!isUuid(params.studyId)) notFound();
+  const form = await request.formData();
+  if (form.get("intent") !== "close") return data({ error: "Unknown action" }, { status: 400 });
+  try {
+    const { study } = await closeStudy(user.id, lab.id, params.studyId);
+    await mailAnalysts(request, lab.id, params.studyId, study.shortName, "closed");
+    return redirect(`/labs/${lab.id}/studies/${params.studyId}/results`);
+  } catch (error) {
+    if (error instanceof LifecycleError) {
+      if (error.status === 404) notFound();
+      return data({ error: error.message }, { status: error.status });
+    }
+    throw error;
+  }
+}
+
+const STATE_LABELS = { draft: "□ Draft", randomized: "◇ Randomized", running: "▶ Running", closed: "■ Closed, blinded", unblinded: "◆ Unblinded" } as const;
+
+export default function StudyResults({ loaderData, actionData }: Route.ComponentProps) {
+  const { lab, study, role, view } = loaderData;
+  const manager = role === "owner" || role === "lead";
+  const base = `/labs/${lab.id}/studies/${study.id}`;
+  return (
+    <div>
+      <PageTitle lead={study.question}>
+        Results: {study.shortName} <span className="ml-2 align-middle text-base font-bold text-graphite-600" data-testid="study-state">{STATE_LABELS[study.state]}</span>
+      </PageTitle>
+      <FormAlert message={actionData?.error} />
+      {!loaderData.closed ? (
+        <section className="rounded-lg border border-rule bg-card p-5">
+          <p className="text-lg">
+            <span className="figures font-bold">{loaderData.progress.done}</span> of <span className="figures font-bold">{loaderData.progress.total}</span> runs have ended or been withdrawn.
+          </p>
+          <p className="mt-2 text-graphite-800">Results are read after the study is closed. Nobody sees outcomes by arm while it runs.</p>
+          {manager && study.state === "running" ? (
+            <Form method="post" className="mt-4">
+              <p className="mb-3 max-w-prose">
+                Closing ends the study for good: the database refuses new readings, corrections and run changes, and a blinded analysis snapshot is taken
+                and hashed. Analysts are e-mailed.
+              </p>
+              <SubmitButton intent="close">Close the study</SubmitButton>
+            </Form>
+          ) : null}
+        </section>
+      ) : (
+        <>
+          <section aria-label="Blinding" className="mb-6 rounded border-l-4 border-ink bg-card p-4">
+            {study.state === "closed" ? (
+              <p>
+                <strong>Blinded.</strong> Arms are shown under neutral names until a lead unblinds the study.
+                {manager ? (
+                  <>
+                    {" "}
+                    <Link to={`${base}/results/unblind`} className="font-bold">Unblind…</Link>
+                  </>
+                ) : null}
+              </p>
+            ) : (
+              <p data-testid="unblinded-note">
+                <strong>Unblinded</strong> on {new Date(study.unblindedAt!).toLocaleString("en-GB", { timeZone: "UTC" })} UTC. The analysis was done blind: it was taken when the study closed on{" "}
+                {new Date(study.closedAt!).toLocaleString("en-GB", { timeZone: "UTC" })} UTC, before anyone saw the arm names, and is unchanged since (snapshot hash <code className="break-all text-xs">{study.snapshotHash}</code>).
+              </p>
+            )}
+          </section>
+          <ResultsTables view={view!} />
+          <h2 className="mb-3 mt-8 text-xl font-bold">Charts</h2>
+          <ResultsCharts url={`/labs/${lab.id}/api/studies/${study.id}/analysis.json`} threshold={loaderData.threshold} />
+          <section className="mt-8" aria-labelledby="exports">
+            <h2 id="exports" className="mb-2 text-xl font-bold">Report and exports</h2>
+            <ul className="flex flex-wrap gap-3">
+              <li><Link to={`${base}/report`} className="inline-flex min-h-target items-center rounded border border-graphite-800 px-4 font-bold text-graphite-950 no-underline">Study report (print)</Link></li>
+              <li><a href={`/labs/${lab.id}/api/studies/${study.id}/readings.csv`} className="inline-flex min-h-target items-center rounded border border-graphite-800 px-4 font-bold text-graphite-950 no-underline">Raw readings (CSV)</a></li>
+              <li><a href={`/labs/${lab.id}/api/studies/${study.id}/outcomes.csv`} className="inline-flex min-h-target items-center rounded border border-graphite-800 px-4 font-bold text-graphite-950 no-underline">Per-run outcomes (CSV)</a></li>
+              <li><a href={`/labs/${lab.id}/api/studies/${study.id}/bundle.json`} className="inline-flex min-h-target items-center rounded border border-graphite-800 px-4 font-bold text-graphite-950 no-underline">Reproducibility bundle (JSON)</a></li>
+            </ul>
+          </section>
+        </>
+      )}
+    </div>
+  );
+}
+

@@ -1,0 +1,24 @@
+import { data } from "react-router";
+import { requireLabRole, notFound, isUuid } from "../access.server.ts";
+import { loadStudyRecord } from "./study-data.server.ts";
+import type { StudyAnalysis } from "~/domain/study-analysis.ts";
+
+/** Owners, leads and analysts read results; testers never do. */
+export const RESULT_READERS = ["owner", "lead", "analyst"] as const;
+
+/** The study for a results page or export, with the reader's role; 404 for another lab's study. */
+export async function requireStudyForResults(request: Request, labId: string | undefined, studyId: string | undefined) {
+  const access = await requireLabRole(request, labId, RESULT_READERS);
+  if (!isUuid(studyId)) notFound();
+  const record = await loadStudyRecord(access.lab.id, studyId);
+  if (!record) notFound();
+  return { ...access, record };
+}
+
+/** The blinded snapshot taken at closing; refuses a study that is not closed yet. */
+export function closedAnalysis(record: { study: { state: string; blindedSnapshot: Record<string, unknown> | null } }): StudyAnalysis {
+  if (record.study.state !== "closed" && record.study.state !== "unblinded") {
+    throw data("The study is not closed yet: results are read after closing.", { status: 409 });
+  }
+  return (record.study.blindedSnapshot as { analysis: StudyAnalysis }).analysis;
+}

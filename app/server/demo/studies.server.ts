@@ -1,0 +1,170 @@
+// The demo lab's studies, made through the app's own code with recorded seeds, and
+// readings from the seeded simulator (invented data, labelled as such):
+// a finished parallel study (closed and unblinded), a finished within-blade study
+// (closed, still blind), a running study with runs waiting for the demo tester, and a draft.
+import { and, asc, eq } from "drizzle-orm";
+import type { Transaction } from "../db.server.ts";
+import { protocolVersions, runs, studies, studyArms, studyBlades, studyTesters } from "../db/schema/index.ts";
+import { randomizeStudyTx, startStudyTx } from "../studies/randomize.server.ts";
+import { closeStudyTx, unblindStudyTx } from "../analysis/lifecycle.server.ts";
+import { recordSimulatedRun } from "../simulated-runs.server.ts";
+import { toForceProtocol, type ProtocolContent } from "~/domain/protocol.ts";
+import type { EdgeForceModel } from "~/domain/simulator.ts";
+import type { DemoLibrary } from "./library.server.ts";
+
+type People = { leadId: string; testerIds: [string, string] };
+
+const fineRecipe = [
+  { abrasive: "Fine bench stone (invented)", grit: "1000", angleDegPerSide: 17, amountKind: "strokes", amount: 20, deburring: "Light edge-trailing strokes" },
+  { abrasive: "Plain leather strop", grit: "—", angleDegPerSide: 18, amountKind: "strokes", amount: 10, deburring: "Stropping" },
+];
+const coarseRecipe = [{ abrasive: "Medium bench stone (invented)", grit: "320", angleDegPerSide: 17, amountKind: "strokes", amount: 30, deburring: "Light edge-trailing strokes" }];
+
+async function createStudy(
+  tx: Transaction,
+  labId: string,
+  people: People,
+  spec: {
+    shortName: string;
+    question: string;
+    hypothesis: string;
+    protocolVersionId: string;
+    design: "parallel" | "within_blade";
+    arms: { name: string; description: string; recipe?: unknown[]; bladeIds?: string[] }[];
+    bladeIds?: string[];
+    testerIds: string[];
+    preparer?: boolean;
+    replicates: number;
+  },
+) {
+  const [study] = await tx
+    .insert(studies)
+    .values({
+      labId,
+      shortName: spec.shortName,
+      question: spec.question,
+      hypothesis: spec.hypothesis,
+      primaryOutcome: "cuts_to_threshold",
+      secondaryOutcomes: ["working_sharpness", "baseline_sharpness", "loss_rate"],
+      protocolVersionId: spec.protocolVersionId,
+      design: spec.design,
+      analysisPlan: { alpha: 0.05, comparisons: "all_pairs", referenceArmId: null, tests: spec.design === "parallel" ? ["welch_t", "mann_whitney", "log_rank"] : ["paired_t", "wilcoxon_signed_rank"] },
+      randomization: { method: "permuted_blocks", blockSizes: spec.design === "parallel" ? [2, 4] : [4], stratifyByTester: false, sittingLength: 4, replicates: spec.replicates },
+      preparerId: spec.preparer ? people.leadId : null,
+      isDemo: true,
+      createdBy: people.leadId,
+    })
+    .returning();
+  const arms = await tx
+    .insert(studyArms)
+    .values(spec.arms.map((a, i) => ({ studyId: study.id, labId, name: a.name, description: a.description, sharpeningRecipe: a.recipe ?? null, position: i })))
+    .returning();
+  const enrol = spec.design === "parallel" ? spec.arms.flatMap((a, i) => (a.bladeIds ?? []).map((bladeId) => ({ bladeId, armId: arms[i].id }))) : (spec.bladeIds ?? []).map((bladeId) => ({ bladeId, armId: null }));
+  if (enrol.length) await tx.insert(studyBlades).values(enrol.map((e) => ({ studyId: study.id, labId, bladeId: e.bladeId, armId: e.armId })));
+  if (spec.testerIds.length) await tx.insert(studyTesters).values(spec.testerIds.map((userId) => ({ studyId: study.id, userId })));
+  return { study, arms };
+}
+
+/** Runs every waiting run of a study through the simulator, in schedule order, one model per arm. */
+async function simulateRuns(tx: Transaction, labId: string, studyId: string, content: ProtocolContent, models: Map<string, EdgeForceModel>, seed: string, limit = Infinity) {
+  const protocol = toForceProtocol(content)!;
+  const rows = await tx.select().from(runs).where(eq(runs.studyId, studyId)).orderBy(asc(runs.schedulePosition));
+  let start = Date.now() - 30 * 86_400_000;
+  let done = 0;
+  for (const run of rows) {
+    if (done >= limit) break;
+    await recordSimulatedRun(tx, { labId, runId: run.id, testerId: run.testerId, protocol, model: models.get(run.armId)!, seed: `${seed}/run-${run.schedulePosition}`, startAt: new Date(start) });
+    start += 3 * 3600_000;
+    done++;
+  }
+}
+
+const model = (baseline: number, loss: number): EdgeForceModel => ({
+  baselineMeanGf: baseline,
+  baselineSdGf: 12,
+  lossRatePerCut: loss,
+  lossRateSd: loss * 0.12,
+  curvature: 0,
+  noiseSdGf: 14,
+  positionEffectsGf: { heel: 8, middle: 0, tip: -6 },
+});
+
+export async function loadDemoStudies(tx: Transaction, labId: string, people: People, library: DemoLibrary, protocolIds: { ropeProtocolId: string }) {
+  const [ropeV2] = await tx.select().from(protocolVersions).where(and(eq(protocolVersions.protocolId, protocolIds.ropeProtocolId), eq(protocolVersions.version, 2)));
+  const content = ropeV2.content as ProtocolContent;
+
+  // 1. Finished parallel study: two tempering temperatures of AISI 52100. Closed, then unblinded.
+  const temper = await createStudy(tx, labId, people, {
+    shortName: "Temper trial T-1 (demo)",
+    question: "Does tempering AISI 52100 at 175 °C rather than 230 °C change the cuts to threshold on manila rope?",
+    hypothesis: "Blades tempered at 175 °C reach the threshold later.",
+    protocolVersionId: ropeV2.id,
+    design: "parallel",
+    arms: [
+      { name: "52100 tempered 175 °C", description: "AISI 52100, 2 × 2 h at 175 °C, about 62 HRC (invented demo)", bladeIds: library.bladeIds.temperLow },
+      { name: "52100 tempered 230 °C", description: "AISI 52100, 2 × 2 h at 230 °C, about 59.5 HRC (invented demo)", bladeIds: library.bladeIds.temperHigh },
+    ],
+    testerIds: people.testerIds,
+    replicates: 2,
+  });
+  await randomizeStudyTx(tx, people.leadId, labId, temper.study.id, "demo-temper-t1");
+  await startStudyTx(tx, people.leadId, labId, temper.study.id);
+  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 4.4)], [temper.arms[1].id, model(150, 5.6)]]), "demo-temper-t1/sim");
+  await closeStudyTx(tx, people.leadId, labId, temper.study.id);
+  await unblindStudyTx(tx, people.leadId, labId, temper.study.id);
+
+  // 2. Finished within-blade study: polished against coarse finish on AISI 1095. Closed, still blind.
+  const finish = await createStudy(tx, labId, people, {
+    shortName: "Finish trial F-1 (demo)",
+    question: "On manila rope, does a coarse edge finish outlast a polished one on the same blade?",
+    hypothesis: "The coarse finish reaches the threshold later.",
+    protocolVersionId: ropeV2.id,
+    design: "within_blade",
+    arms: [
+      { name: "Polished finish", description: "Fine stone then leather strop (invented demo recipe)", recipe: fineRecipe },
+      { name: "Coarse finish", description: "Medium stone only (invented demo recipe)", recipe: coarseRecipe },
+    ],
+    bladeIds: library.bladeIds.plain,
+    testerIds: people.testerIds,
+    preparer: true,
+    replicates: 1,
+  });
+  await randomizeStudyTx(tx, people.leadId, labId, finish.study.id, "demo-finish-f1");
+  await startStudyTx(tx, people.leadId, labId, finish.study.id);
+  await simulateRuns(tx, labId, finish.study.id, content, new Map([[finish.arms[0].id, model(130, 5.8)], [finish.arms[1].id, model(175, 4.6)]]), "demo-finish-f1/sim");
+  await closeStudyTx(tx, people.leadId, labId, finish.study.id);
+
+  // 3. Running: two runs done, the rest waiting for the demo tester.
+  const running = await createStudy(tx, labId, people, {
+    shortName: "Steel screen S-1 (demo, running)",
+    question: "Does AISI 1095 keep an edge on rope as long as AISI 52100 at the lab's usual temper?",
+    hypothesis: "No difference larger than 10 cuts.",
+    protocolVersionId: ropeV2.id,
+    design: "parallel",
+    arms: [
+      { name: "AISI 1095", description: "AISI 1095, tempered 200 °C (invented demo)", bladeIds: library.bladeIds.plain.slice(0, 2) },
+      { name: "AISI 52100", description: "AISI 52100, tempered 175 °C (invented demo)", bladeIds: library.bladeIds.temperLow.slice(0, 2) },
+    ],
+    testerIds: [people.testerIds[0]],
+    replicates: 2,
+  });
+  await randomizeStudyTx(tx, people.leadId, labId, running.study.id, "demo-screen-s1");
+  await startStudyTx(tx, people.leadId, labId, running.study.id);
+  await simulateRuns(tx, labId, running.study.id, content, new Map([[running.arms[0].id, model(155, 5.2)], [running.arms[1].id, model(150, 4.6)]]), "demo-screen-s1/sim", 2);
+
+  // 4. A draft still being designed.
+  await createStudy(tx, labId, people, {
+    shortName: "Angle trial A-1 (demo draft)",
+    question: "Does 15° per side instead of 20° per side change the working sharpness on rope?",
+    hypothesis: "",
+    protocolVersionId: ropeV2.id,
+    design: "parallel",
+    arms: [
+      { name: "15° per side", description: "Edge angle 15° per side (invented demo)", bladeIds: [] },
+      { name: "20° per side", description: "Edge angle 20° per side (invented demo)", bladeIds: [] },
+    ],
+    testerIds: [],
+    replicates: 1,
+  });
+  return { temperStudyId: temper.study.id, finishStudyId: finish.study.id, runningStudyId: running.study.id };
+}
