@@ -17,6 +17,7 @@ export default [
     route(":labId", "routes/labs/home.tsx"),
     route(":labId/members", "routes/labs/members.tsx"),
     route(":labId/invitations", "routes/labs/invitations.tsx"),
+    route(":labId/audit", "routes/labs/audit.tsx"),
     // protocols
     route(":labId/protocols", "routes/protocols/list.tsx"),
     route(":labId/protocols/new", "routes/protocols/new.tsx"),

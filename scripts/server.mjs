@@ -43,6 +43,23 @@ app.use(
   }),
 );
 app.use(compression());
+
+// Writes from another site are refused: a form or fetch posted from a foreign page
+// carries that page's Origin (or Sec-Fetch-Site: cross-site). SameSite=Lax cookies
+// already stop most of it; this closes the rest.
+const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
+const appOrigin = process.env.APP_URL ? new URL(process.env.APP_URL).origin : null;
+app.use((req, res, next) => {
+  if (SAFE_METHODS.has(req.method)) return next();
+  const origin = req.get("origin");
+  const expected = appOrigin ?? `${req.protocol}://${req.get("host")}`;
+  const crossSite = origin ? origin !== expected : req.get("sec-fetch-site") === "cross-site";
+  if (crossSite) {
+    res.status(403).type("application/json").send(JSON.stringify({ error: "Requests from another site are refused." }));
+    return;
+  }
+  next();
+});
 app.use("/assets", express.static(path.join(ROOT, "build/client/assets"), { immutable: true, maxAge: "1y" }));
 app.use(express.static(path.join(ROOT, "build/client"), { maxAge: "1h" }));
 
