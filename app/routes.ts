@@ -11,6 +11,7 @@ export default [
   route("reset-password/:token", "routes/auth/reset-password.tsx"),
   route("invitations/:token", "routes/auth/invitation.tsx"),
   route("account", "routes/auth/account.tsx"),
+  route("bench", "routes/bench/queue.tsx"), // bench
 
   ...prefix("labs", [
     index("routes/labs/index.tsx"),
@@ -27,6 +28,15 @@ export default [
     route(":labId/protocols/:protocolId/versions/:version/print", "routes/protocols/print.tsx"),
     // planning
     route(":labId/planning/sample-size", "routes/labs/planning/sample-size.tsx"),
+    // studies
+    route(":labId/studies", "routes/studies/list.tsx"),
+    route(":labId/studies/new", "routes/studies/new.tsx"),
+    route(":labId/studies/:studyId", "routes/studies/study.tsx"),
+    route(":labId/studies/:studyId/design/:step", "routes/studies/design.tsx"),
+    route(":labId/studies/:studyId/randomize", "routes/studies/randomize.tsx"),
+    route(":labId/studies/:studyId/start", "routes/studies/start.tsx"),
+    route(":labId/studies/:studyId/labels", "routes/studies/labels.tsx"),
+    route(":labId/studies/:studyId/schedule.csv", "routes/api/schedule-csv.ts"),
     // library (owners and leads only)
     route(":labId/blades", "routes/library/blades.tsx"),
     route(":labId/blades/new", "routes/library/blade-new.tsx"),
@@ -40,6 +50,18 @@ export default [
     route(":labId/instruments/:instrumentId", "routes/library/instrument.tsx"),
     route(":labId/uploads", "routes/api/uploads.ts"),
     route(":labId/files/:fileId", "routes/api/file.ts"),
+    // bench
+    route(":labId/bench/runs/:runId", "routes/bench/run.tsx"), // bench
+    route(":labId/bench/runs/:runId/photos/:fileId", "routes/bench/photo.ts"), // bench
+    route(":labId/api/runs/:runId/readings", "routes/bench/api/readings.ts"), // bench
+    route(":labId/api/runs/:runId/corrections", "routes/bench/api/corrections.ts"), // bench
+    route(":labId/api/runs/:runId/events", "routes/bench/api/events.ts"), // bench
+    route(":labId/api/runs/:runId/photos", "routes/bench/api/photos.ts"), // bench
+    route(":labId/api/runs/:runId/import", "routes/bench/api/import.ts"), // bench
+    route(":labId/api/runs/:runId/state", "routes/bench/api/state.ts"), // bench
+    route(":labId/studies/:studyId/progress", "routes/bench/progress.tsx"), // bench
+    route(":labId/studies/:studyId/progress.json", "routes/bench/api/progress.ts"), // bench
+    route(":labId/studies/:studyId/preparation", "routes/bench/preparation.tsx"), // bench
     // results (owners, leads and analysts)
     route(":labId/results", "routes/results/list.tsx"),
     route(":labId/studies/:studyId/results", "routes/results/study-results.tsx"),

@@ -23,6 +23,11 @@ export function AppShell({ user, children }: { user: ShellUser | null; children:
                 {user.currentLab.name}
               </NavLink>
             ) : null}
+            {user?.isTester ? (
+              <NavLink to="/bench" className={navClass}>
+                My runs
+              </NavLink>
+            ) : null}
             {user ? (
               <NavLink to="/labs?all" className={navClass} end>
                 Labs

@@ -295,6 +295,12 @@ export async function compareVersions(labId: string, protocolId: string, a: numb
 // Helpers for routes.
 
 /** Leads and owners write protocols and see drafts; testers and analysts read published versions. */
+/** Whether the protocol belongs to the lab: actions check it before reading their input, so another lab's id is 404. */
+export async function requireProtocolOfLab(labId: string, protocolId: string) {
+  const [row] = await db().select({ id: protocols.id }).from(protocols).where(and(eq(protocols.id, protocolId), eq(protocols.labId, labId))).limit(1);
+  if (!row) notFoundError();
+}
+
 export function canWriteProtocols(role: string) {
   return role === "owner" || role === "lead";
 }

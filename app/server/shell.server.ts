@@ -6,6 +6,7 @@ export type ShellUser = {
   name: string;
   currentLab: { id: string; name: string } | null;
   labCount: number;
+  isTester: boolean; // a tester in some lab: the shell links to the bench
 };
 
 export async function getOptionalShellUser(request: Request, labId?: string): Promise<ShellUser | null> {
@@ -13,5 +14,5 @@ export async function getOptionalShellUser(request: Request, labId?: string): Pr
   if (!user) return null;
   const labs = await labsOfUser(user.id);
   const current = labs.find((l) => l.id === labId) ?? (labs.length === 1 ? labs[0] : null);
-  return { name: user.name, currentLab: current ? { id: current.id, name: current.name } : null, labCount: labs.length };
+  return { name: user.name, currentLab: current ? { id: current.id, name: current.name } : null, labCount: labs.length, isTester: labs.some((l) => l.role === "tester") };
 }

@@ -3,6 +3,7 @@
 import type { TestProject } from "vitest/node";
 import { spawn, type ChildProcess } from "node:child_process";
 import path from "node:path";
+import net from "node:net";
 import { cloneTemplate } from "./pg-admin.ts";
 
 declare module "vitest" {
@@ -15,9 +16,9 @@ declare module "vitest" {
 const ROOT = path.resolve(import.meta.dirname, "../..");
 
 export default async function setup(project: TestProject) {
-  const port = Number(process.env.BLINDCUT_E2E_PORT ?? 3199);
+  const port = Number(process.env.BLINDCUT_E2E_PORT ?? (await freePort()));
   const t = process.env;
-  const databaseUrl = await cloneTemplate("blindcut_e2e", t.BLINDCUT_TEST_TEMPLATE_DB!);
+  const databaseUrl = await cloneTemplate(`blindcut_e2e_${t.BLINDCUT_TEST_RUN_TAG}`, t.BLINDCUT_TEST_TEMPLATE_DB!);
   const env = {
     ...process.env,
     NODE_ENV: "production",
@@ -50,6 +51,18 @@ export default async function setup(project: TestProject) {
     server.kill("SIGTERM");
     await new Promise((r) => server.once("exit", r));
   };
+}
+
+/** A free port on loopback, so concurrent test runs never collide. */
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const server = net.createServer();
+    server.once("error", reject);
+    server.listen(0, "127.0.0.1", () => {
+      const address = server.address();
+      server.close(() => resolve(typeof address === "object" && address ? address.port : 3199));
+    });
+  });
 }
 
 function runOnce(child: ChildProcess) {

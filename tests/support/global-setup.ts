@@ -11,6 +11,7 @@ import { databaseUrlFor, withAdmin } from "./pg-admin.ts";
 declare module "vitest" {
   export interface ProvidedContext {
     templateDb: string;
+    runTag: string;
     mailDir: string;
     smtpUrl: string;
     s3Endpoint: string;
@@ -19,7 +20,9 @@ declare module "vitest" {
 }
 
 export default async function setup(project: TestProject) {
-  const templateDb = `blindcut_template_${project.name}`;
+  // Names carry this run's tag, so two test runs on one machine never drop each other's databases.
+  const runTag = `${project.name.slice(0, 3)}${process.pid}`;
+  const templateDb = `blindcut_template_${runTag}`;
   await withAdmin(async (c) => {
     await c.query(`DROP DATABASE IF EXISTS "${templateDb}" WITH (FORCE)`);
     await c.query(`CREATE DATABASE "${templateDb}"`);
@@ -41,6 +44,8 @@ export default async function setup(project: TestProject) {
     BLINDCUT_TEST_S3_BUCKET: s3Bucket,
   });
   project.provide("templateDb", templateDb);
+  project.provide("runTag", runTag);
+  process.env.BLINDCUT_TEST_RUN_TAG = runTag;
   project.provide("mailDir", mailDir);
   project.provide("smtpUrl", `smtp://127.0.0.1:${smtp.port}`);
   project.provide("s3Endpoint", `http://127.0.0.1:${s3.port}`);
@@ -48,5 +53,9 @@ export default async function setup(project: TestProject) {
 
   return async () => {
     await Promise.allSettled([smtp.close(), s3.close()]);
+    await withAdmin(async (c) => {
+      const own = await c.query(`SELECT datname FROM pg_database WHERE datname LIKE $1`, [`blindcut_%${runTag}%`]);
+      for (const row of own.rows) await c.query(`DROP DATABASE IF EXISTS "${row.datname}" WITH (FORCE)`);
+    });
   };
 }

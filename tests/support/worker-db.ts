@@ -5,7 +5,7 @@ import { cloneTemplate } from "./pg-admin.ts";
 
 const worker = process.env.VITEST_POOL_ID ?? "0";
 process.env.NODE_ENV = "test";
-process.env.DATABASE_URL = await cloneTemplate(`blindcut_test_${worker}`, inject("templateDb"));
+process.env.DATABASE_URL = await cloneTemplate(`blindcut_test_${inject("runTag")}_${worker}`, inject("templateDb"));
 process.env.SMTP_URL = inject("smtpUrl");
 process.env.MAIL_CATCH_DIR = inject("mailDir");
 process.env.S3_ENDPOINT = inject("s3Endpoint");

@@ -32,6 +32,7 @@ export default function LabHome({ loaderData }: Route.ComponentProps) {
             <Tile to={`/labs/${lab.id}/members`} title="Members" text={`${memberCount} member${memberCount === 1 ? "" : "s"} and their roles`} />
             <Tile to={`/labs/${lab.id}/invitations`} title="Invitations" text="Invite by e-mail; see pending, accepted and expired invitations" />
             <Tile to={`/labs/${lab.id}/planning/sample-size`} title="Sample size" text="Blades a study needs, from the SD, the difference that matters, alpha and power" />
+            <Tile to={`/labs/${lab.id}/studies`} title="Studies" text="Design, randomize, label and start blinded studies" />
             <Tile to={`/labs/${lab.id}/audit`} title="Audit log" text="Every event of the lab, chained by hash; filter by study, person and kind" />
             <Tile to={`/labs/${lab.id}/blades`} title="Library" text="Blades, cut media and lots, instruments and calibration" />
           </>

@@ -19,7 +19,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  if (!isUuid(params.bladeId)) notFound();
+  if (!isUuid(params.bladeId) || !(await getBlade(lab.id, params.bladeId))) notFound();
   const form = await request.formData();
   const parsed = parseForm(BladeInput, form);
   if (!parsed.ok) return data(parsed, { status: 400 });

@@ -23,7 +23,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  if (!isUuid(params.bladeId)) notFound();
+  // Another lab's id is 404 before the input is even read.
+  if (!isUuid(params.bladeId) || !(await getBlade(lab.id, params.bladeId))) notFound();
   const parsed = parseForm(CustodyInput, await request.formData());
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {

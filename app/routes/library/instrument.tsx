@@ -19,7 +19,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  if (!isUuid(params.instrumentId)) notFound();
+  if (!isUuid(params.instrumentId) || !(await getInstrument(lab.id, params.instrumentId))) notFound();
   const parsed = parseForm(CalibrationInput, await request.formData());
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {

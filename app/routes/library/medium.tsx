@@ -18,7 +18,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  if (!isUuid(params.mediumId)) notFound();
+  if (!isUuid(params.mediumId) || !(await getMedium(lab.id, params.mediumId))) notFound();
   const parsed = parseForm(LotInput, await request.formData());
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {

@@ -5,7 +5,7 @@ import { PageTitle } from "~/components/form.tsx";
 import { shortHash, StateBadge } from "~/components/protocol-view.tsx";
 import { ALL_ROLES, requireLabRole } from "~/server/access.server.ts";
 import { UserFacingError } from "~/server/accounts.server.ts";
-import { canWriteProtocols, compareVersions, forbidDrafts, protocolIdParam } from "~/server/protocols.server.ts";
+import { canWriteProtocols, compareVersions, forbidDrafts, protocolIdParam, requireProtocolOfLab } from "~/server/protocols.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Compare versions · Blindcut" }];
 
@@ -24,6 +24,9 @@ function show(value: unknown): string {
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab, role } = await requireLabRole(request, params.labId, ALL_ROLES);
   const protocolId = protocolIdParam(params.protocolId);
+  await requireProtocolOfLab(lab.id, protocolId).catch(() => {
+    throw data("Not found", { status: 404 });
+  });
   const url = new URL(request.url);
   const query = CompareQuery.safeParse({ a: url.searchParams.get("a"), b: url.searchParams.get("b") });
   if (!query.success) throw data("Choose two versions to compare, e.g. ?a=1&b=2.", { status: 400 });

@@ -5,7 +5,7 @@ import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { shortHash, StateBadge } from "~/components/protocol-view.tsx";
 import { ALL_ROLES, MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { UserFacingError } from "~/server/accounts.server.ts";
-import { canWriteProtocols, forbidDrafts, getProtocol, newDraftFrom, protocolIdParam } from "~/server/protocols.server.ts";
+import { canWriteProtocols, forbidDrafts, getProtocol, newDraftFrom, protocolIdParam, requireProtocolOfLab } from "~/server/protocols.server.ts";
 import { parseForm } from "~/lib/forms.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.name ?? "Protocol"} · Blindcut` }];
@@ -38,6 +38,9 @@ const NewDraftSchema = z.object({ intent: z.literal("new-draft"), fromVersion: z
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   const protocolId = protocolIdParam(params.protocolId);
+  await requireProtocolOfLab(lab.id, protocolId).catch(() => {
+    throw data("Not found", { status: 404 });
+  });
   const parsed = parseForm(NewDraftSchema, await request.formData());
   if (!parsed.ok) return data({ error: Object.values(parsed.errors)[0] ?? "Check the form" }, { status: 400 });
   try {

@@ -14,6 +14,7 @@ import {
   mediumNames,
   ProtocolContentError,
   protocolIdParam,
+  requireProtocolOfLab,
   publishVersionTx,
   saveDraftTx,
   sharpnessTesterHints,
@@ -58,6 +59,9 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   const protocolId = protocolIdParam(params.protocolId);
   const version = versionParam(params.version);
+  await requireProtocolOfLab(lab.id, protocolId).catch(() => {
+    throw data("Not found", { status: 404 });
+  });
   const form = await request.formData();
   const intent = form.get("intent");
   if (intent !== "save" && intent !== "publish") return data<ActionResult>({ errors: {}, formError: "Unknown action: reload the page and try again." }, { status: 400 });

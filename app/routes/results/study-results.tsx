@@ -4,7 +4,7 @@ import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { ResultsCharts } from "~/components/results-charts.tsx";
 import { ResultsTables } from "~/components/results-tables.tsx";
 import { requireLabRole, isUuid, notFound } from "~/server/access.server.ts";
-import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
+import { closedAnalysis, requireStudyForResults, studyOfLab } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { closeStudy, LifecycleError, mailAnalysts } from "~/server/analysis/lifecycle.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
@@ -31,7 +31,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, ["owner", "lead"]);
-  if (!isUuid(params.studyId)) notFound();
+  if (!isUuid(params.studyId) || !(await studyOfLab(lab.id, params.studyId))) notFound();
   const form = await request.formData();
   if (form.get("intent") !== "close") return data({ error: "Unknown action" }, { status: 400 });
   try {

@@ -1,4 +1,7 @@
 import { data } from "react-router";
+import { and, eq } from "drizzle-orm";
+import { db } from "../db.server.ts";
+import { studies } from "../db/schema/index.ts";
 import { requireLabRole, notFound, isUuid } from "../access.server.ts";
 import { loadStudyRecord } from "./study-data.server.ts";
 import type { StudyAnalysis } from "~/domain/study-analysis.ts";
@@ -13,6 +16,12 @@ export async function requireStudyForResults(request: Request, labId: string | u
   const record = await loadStudyRecord(access.lab.id, studyId);
   if (!record) notFound();
   return { ...access, record };
+}
+
+/** The study's id and state when it belongs to the lab, else null. */
+export async function studyOfLab(labId: string, studyId: string) {
+  const [row] = await db().select({ id: studies.id, state: studies.state }).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
+  return row ?? null;
 }
 
 /** The blinded snapshot taken at closing; refuses a study that is not closed yet. */
