@@ -96,8 +96,8 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   // 1. Finished parallel study: two tempering temperatures of AISI 52100. Closed, then unblinded.
   const temper = await createStudy(tx, labId, people, {
     shortName: "Temper trial T-1 (demo)",
-    question: "Does tempering AISI 52100 at 175 °C rather than 230 °C change the cuts to threshold on manila rope?",
-    hypothesis: "Blades tempered at 175 °C reach the threshold later.",
+    question: "Does the lower of two tempering temperatures change the cuts to threshold on manila rope?",
+    hypothesis: "The lower temper reaches the threshold later.",
     protocolVersionId: ropeV2.id,
     design: "parallel",
     arms: [
@@ -116,8 +116,8 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   // 2. Finished within-blade study: polished against coarse finish on AISI 1095. Closed, still blind.
   const finish = await createStudy(tx, labId, people, {
     shortName: "Finish trial F-1 (demo)",
-    question: "On manila rope, does a coarse edge finish outlast a polished one on the same blade?",
-    hypothesis: "The coarse finish reaches the threshold later.",
+    question: "On manila rope, does the edge finish change how long the same blade stays sharp?",
+    hypothesis: "The rougher finish reaches the threshold later.",
     protocolVersionId: ropeV2.id,
     design: "within_blade",
     arms: [
@@ -137,7 +137,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   // 3. Running: two runs done, the rest waiting for the demo tester.
   const running = await createStudy(tx, labId, people, {
     shortName: "Steel screen S-1 (demo, running)",
-    question: "Does AISI 1095 keep an edge on rope as long as AISI 52100 at the lab's usual temper?",
+    question: "Do the two candidate steels differ in cuts to threshold on manila rope?",
     hypothesis: "No difference larger than 10 cuts.",
     protocolVersionId: ropeV2.id,
     design: "parallel",
@@ -145,23 +145,39 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
       { name: "AISI 1095", description: "AISI 1095, tempered 200 °C (invented demo)", bladeIds: library.bladeIds.plain.slice(0, 2) },
       { name: "AISI 52100", description: "AISI 52100, tempered 175 °C (invented demo)", bladeIds: library.bladeIds.temperLow.slice(0, 2) },
     ],
-    testerIds: [people.testerIds[0]],
+    testerIds: people.testerIds,
     replicates: 2,
   });
   await randomizeStudyTx(tx, people.leadId, labId, running.study.id, "demo-screen-s1");
   await startStudyTx(tx, people.leadId, labId, running.study.id);
   await simulateRuns(tx, labId, running.study.id, content, new Map([[running.arms[0].id, model(155, 5.2)], [running.arms[1].id, model(150, 4.6)]]), "demo-screen-s1/sim", 2);
 
-  // 4. A draft still being designed.
+  // 4. Randomized, not started yet: its label sheet and schedule can be printed.
+  const randomized = await createStudy(tx, labId, people, {
+    shortName: "Temper repeat T-2 (demo, randomized)",
+    question: "Does the T-1 result hold on a second rope lot?",
+    hypothesis: "The lower temper reaches the threshold later, as in T-1.",
+    protocolVersionId: ropeV2.id,
+    design: "parallel",
+    arms: [
+      { name: "52100 tempered 175 °C (repeat)", description: "AISI 52100, 2 × 2 h at 175 °C (invented demo)", bladeIds: library.bladeIds.temperLow.slice(2) },
+      { name: "52100 tempered 230 °C (repeat)", description: "AISI 52100, 2 × 2 h at 230 °C (invented demo)", bladeIds: library.bladeIds.temperHigh.slice(2) },
+    ],
+    testerIds: people.testerIds,
+    replicates: 1,
+  });
+  await randomizeStudyTx(tx, people.leadId, labId, randomized.study.id, "demo-temper-t2");
+
+  // 5. A draft still being designed.
   await createStudy(tx, labId, people, {
     shortName: "Angle trial A-1 (demo draft)",
-    question: "Does 15° per side instead of 20° per side change the working sharpness on rope?",
+    question: "Does a more acute edge angle change the working sharpness on rope?",
     hypothesis: "",
     protocolVersionId: ropeV2.id,
     design: "parallel",
     arms: [
-      { name: "15° per side", description: "Edge angle 15° per side (invented demo)", bladeIds: [] },
-      { name: "20° per side", description: "Edge angle 20° per side (invented demo)", bladeIds: [] },
+      { name: "Acute edge (draft arm)", description: "Sharpened at 15 degrees a side (invented demo)", bladeIds: [] },
+      { name: "Standard edge (draft arm)", description: "Sharpened at 20 degrees a side (invented demo)", bladeIds: [] },
     ],
     testerIds: [],
     replicates: 1,
