@@ -1,6 +1,6 @@
 import { and, eq } from "drizzle-orm";
 import { parseFormData, MaxFilesExceededError, type FileUpload } from "@remix-run/form-data-parser";
-import { MaxFileSizeExceededError, MultipartParseError } from "@remix-run/multipart-parser";
+import { MaxFileSizeExceededError } from "@remix-run/multipart-parser";
 import { db } from "./db.server.ts";
 import { storedFiles } from "./db/schema/index.ts";
 import { MAX_IMAGE_BYTES, putObject, sniffImageType, getObject } from "./storage.server.ts";
@@ -29,10 +29,10 @@ export async function receiveImage(request: Request, labId: string, userId: stri
       return null;
     });
   } catch (error) {
-    if (error instanceof MaxFileSizeExceededError) throw new UploadError(`The photo is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB. Choose a smaller image.`, 413);
+    if (error instanceof MaxFileSizeExceededError || (error as Error)?.name === "MaxFileSizeExceededError" || (error as { cause?: Error })?.cause instanceof MaxFileSizeExceededError) throw new UploadError(`The photo is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB. Choose a smaller image.`, 413);
     if (error instanceof MaxFilesExceededError) throw new UploadError("Send one photo at a time");
-    if (error instanceof MultipartParseError) throw new UploadError("The upload could not be read. Try again.");
-    throw error;
+    // Any other parse failure is a malformed upload from the sender, not a server fault.
+    throw new UploadError("The upload could not be read. Try again.");
   }
   if (!file || file.size === 0) throw new UploadError("Choose a photo to upload");
   const bytes = new Uint8Array(await file.arrayBuffer());

@@ -4,6 +4,7 @@ import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx
 import { requireUser } from "~/server/access.server.ts";
 import { changePassword, ChangePasswordSchema, UserFacingError } from "~/server/accounts.server.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account · Blindcut" }];
 
@@ -14,7 +15,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const parsed = parseForm(ChangePasswordSchema, await request.formData());
+  const parsed = parseForm(ChangePasswordSchema, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {
     await changePassword(user.id, user.sessionId, parsed.data);

@@ -5,13 +5,14 @@ import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx
 import { parseForm } from "~/lib/forms.ts";
 import { startPasswordReset, RESET_MINUTES } from "~/server/accounts.server.ts";
 import { appUrl, composeMail, sendMail } from "~/server/mail.server.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reset your password · Blindcut" }];
 
 const Schema = z.object({ email: z.string().trim().toLowerCase().email("Enter the e-mail address of your account") });
 
 export async function action({ request }: Route.ActionArgs) {
-  const parsed = parseForm(Schema, await request.formData());
+  const parsed = parseForm(Schema, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, sent: false }, { status: 400 });
   const reset = await startPasswordReset(parsed.data.email);
   if (reset) {

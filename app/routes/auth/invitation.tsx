@@ -5,6 +5,7 @@ import { parseForm } from "~/lib/forms.ts";
 import { AcceptNewSchema, acceptInvitation, openInvitation, UserFacingError } from "~/server/accounts.server.ts";
 import { getSessionUser } from "~/server/session.server.ts";
 import { ROLE_LABELS } from "~/lib/roles.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Join a lab · Blindcut" }];
 
@@ -22,7 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readFormData(request);
   const user = await getSessionUser(request);
   try {
     if (form.get("intent") === "accept") {

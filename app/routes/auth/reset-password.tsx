@@ -4,6 +4,7 @@ import type { Route } from "./+types/reset-password";
 import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { parseForm } from "~/lib/forms.ts";
 import { completePasswordReset, PasswordSchema, resetTokenValid, UserFacingError } from "~/server/accounts.server.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Choose a new password · Blindcut" }];
 
@@ -12,7 +13,7 @@ export async function loader({ params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const parsed = parseForm(z.object({ password: PasswordSchema }), await request.formData());
+  const parsed = parseForm(z.object({ password: PasswordSchema }), await readFormData(request));
   if (!parsed.ok) return data(parsed, { status: 400 });
   try {
     const { cookie } = await completePasswordReset(params.token, parsed.data.password);

@@ -5,6 +5,7 @@ import { authenticator, safeRedirect, SignInError } from "~/server/auth.server.t
 import { createUserSession, getSessionUser } from "~/server/session.server.ts";
 import { env } from "~/server/env.server.ts";
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "~/server/demo/accounts.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Blindcut" }];
 
@@ -17,7 +18,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  const form = await request.clone().formData();
+  const form = await readFormData(request.clone());
   const email = String(form.get("email") ?? "");
   try {
     const user = await authenticator.authenticate("form", request);

@@ -4,6 +4,7 @@ import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx
 import { parseForm, formFailure } from "~/lib/forms.ts";
 import { SignUpSchema, signUp, UserFacingError } from "~/server/accounts.server.ts";
 import { getSessionUser } from "~/server/session.server.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Create a lab · Blindcut" }];
 
@@ -13,7 +14,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readFormData(request);
   const parsed = parseForm(SignUpSchema, form);
   if (!parsed.ok) return data(parsed, { status: 400 });
   try {

@@ -6,6 +6,7 @@ import { MANAGERS, notFound, requireLabRole, isUuid } from "~/server/access.serv
 import { BenchError } from "~/server/bench/api.server.ts";
 import { HandOverInput, preparationList, recordHandOver, studyOfLab } from "~/server/bench/leads.server.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Preparation · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -23,7 +24,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   const study = isUuid(params.studyId) ? await studyOfLab(lab.id, params.studyId) : null;
   if (!study) notFound();
-  const parsed = parseForm(HandOverInput, await request.formData());
+  const parsed = parseForm(HandOverInput, await readFormData(request));
   if (!parsed.ok) return data({ ok: false, message: "Choose a run" }, { status: 400 });
   try {
     await recordHandOver(lab.id, study.id, user.id, parsed.data);

@@ -7,6 +7,7 @@ import { MANAGERS, notFound, requireLabRole, isUuid } from "~/server/access.serv
 import { BenchError } from "~/server/bench/api.server.ts";
 import { reassignRuns, ReassignInput, studyOfLab, studyProgress, studyTesterChoices, withdrawRun, WithdrawInput } from "~/server/bench/leads.server.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Progress · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -24,7 +25,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   const study = isUuid(params.studyId) ? await studyOfLab(lab.id, params.studyId) : null;
   if (!study) notFound();
-  const form = await request.formData();
+  const form = await readFormData(request);
   const intent = form.get("intent");
   try {
     if (intent === "withdraw") {

@@ -13,6 +13,7 @@ import { ordinal } from "~/domain/bench/run-progress.ts";
 import { db } from "~/server/db.server.ts";
 import { protocolVersions, runs, studies } from "~/server/db/schema/index.ts";
 import { eq } from "drizzle-orm";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.view.run.blindCode ?? "Run"} · Bench · Blindcut` }];
 
@@ -31,7 +32,7 @@ type ActionResult = { ok: boolean; errors: Record<string, string>; values: Recor
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { user, lab, runId } = await requireBenchRun(request, params.labId, params.runId, { write: false });
-  const form = await request.formData();
+  const form = await readFormData(request);
   const intent = form.get("intent");
   const fail = (status: number, r: Partial<ActionResult>) => data<ActionResult>({ ok: false, errors: {}, values: {}, ...r }, { status });
   try {

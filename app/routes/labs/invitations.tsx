@@ -7,6 +7,7 @@ import { createInvitation, invitableRoles, invitationsOfLab, InviteSchema, revok
 import { appUrl, composeMail, sendMail } from "~/server/mail.server.ts";
 import { ROLE_LABELS } from "~/lib/roles.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Invitations · Blindcut" }];
 
@@ -17,7 +18,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, role, user } = await requireLabRole(request, params.labId, MANAGERS);
-  const form = await request.formData();
+  const form = await readFormData(request);
   try {
     if (form.get("intent") === "revoke") {
       const parsed = parseForm(z.object({ invitationId: z.string().uuid("Unknown invitation") }), form);

@@ -6,6 +6,7 @@ import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { changeMemberRole, membersOfLab, removeMember, UserFacingError } from "~/server/accounts.server.ts";
 import { ROLE_LABELS } from "~/lib/roles.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Members · Blindcut" }];
 
@@ -22,7 +23,7 @@ const ActionSchema = z.discriminatedUnion("intent", [
 export async function action({ request, params }: Route.ActionArgs) {
   // Only an owner changes roles or removes members; the role is read from the database now.
   const { lab, user } = await requireLabRole(request, params.labId, ["owner"]);
-  const parsed = parseForm(ActionSchema, await request.formData());
+  const parsed = parseForm(ActionSchema, await readFormData(request));
   if (!parsed.ok) return data({ error: Object.values(parsed.errors)[0] ?? "Check the form", done: null }, { status: 400 });
   try {
     if (parsed.data.intent === "change-role") {

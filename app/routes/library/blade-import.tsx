@@ -4,6 +4,7 @@ import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { LibraryNav } from "~/components/table.tsx";
 import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { BLADE_CSV_COLUMNS, commitBladeImport, previewBladeImport, type ImportPreview } from "~/server/library.server.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Import blades · Blindcut" }];
 
@@ -20,7 +21,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   const length = Number(request.headers.get("content-length") ?? 0);
   if (length > MAX_CSV_BYTES * 2) return data<ImportResult>({ preview: null, csv: "", formError: "The file is larger than 1 MB: split it into smaller imports" }, { status: 413 });
-  const form = await request.formData();
+  const form = await readFormData(request);
   const file = form.get("file");
   const csv = typeof file === "object" && file && "text" in file ? await file.text() : String(form.get("csv") ?? "");
   if (!csv.trim()) return data<ImportResult>({ preview: null, csv: "", formError: "Choose a CSV file to import" }, { status: 400 });

@@ -7,6 +7,7 @@ import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { createBlade, LibraryError } from "~/server/library.server.ts";
 import { BladeInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Add a blade · Blindcut" }];
 
@@ -17,7 +18,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  const form = await request.formData();
+  const form = await readFormData(request);
   const parsed = parseForm(BladeInput, form);
   if (!parsed.ok) return data(parsed, { status: 400 });
   const photo = form.get("photoFileId");

@@ -8,6 +8,7 @@ import { addCustodyEvent, custodyLog, getBlade, LibraryError } from "~/server/li
 import { BLADE_STATUS_LABELS, CUSTODY_KINDS, CUSTODY_LABELS, CustodyInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { hrcToHv, summarizeHardness, HRC_TABLE_MAX, HRC_TABLE_MIN } from "~/domain/hardness.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.blade.inventoryNumber ?? "Blade"} · Blindcut` }];
 
@@ -25,7 +26,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   // Another lab's id is 404 before the input is even read.
   if (!isUuid(params.bladeId) || !(await getBlade(lab.id, params.bladeId))) notFound();
-  const parsed = parseForm(CustodyInput, await request.formData());
+  const parsed = parseForm(CustodyInput, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {
     await addCustodyEvent(lab.id, user.id, params.bladeId, parsed.data);

@@ -7,6 +7,7 @@ import { MANAGERS, notFound, requireLabRole, isUuid } from "~/server/access.serv
 import { addCalibrationCheck, getInstrument, LibraryError } from "~/server/library.server.ts";
 import { CalibrationInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.instrument.name ?? "Instrument"} · Blindcut` }];
 
@@ -20,7 +21,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   if (!isUuid(params.instrumentId) || !(await getInstrument(lab.id, params.instrumentId))) notFound();
-  const parsed = parseForm(CalibrationInput, await request.formData());
+  const parsed = parseForm(CalibrationInput, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {
     const check = await addCalibrationCheck(lab.id, user.id, params.instrumentId, parsed.data);

@@ -8,6 +8,7 @@ import { createInstrument, INSTRUMENT_SORTS, LibraryError, listInstruments } fro
 import { INSTRUMENT_KIND_LABELS, InstrumentInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { parseTableQuery } from "~/lib/table-query.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Instruments · Library · Blindcut" }];
 
@@ -19,7 +20,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  const parsed = parseForm(InstrumentInput, await request.formData());
+  const parsed = parseForm(InstrumentInput, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {
     const instrument = await createInstrument(lab.id, user.id, parsed.data);

@@ -7,6 +7,7 @@ import { createMedium, listMedia, MEDIA_SORTS } from "~/server/library.server.ts
 import { MediumInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { parseTableQuery } from "~/lib/table-query.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Cut media · Library · Blindcut" }];
 
@@ -18,7 +19,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  const parsed = parseForm(MediumInput, await request.formData());
+  const parsed = parseForm(MediumInput, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   const medium = await createMedium(lab.id, user.id, parsed.data);
   return { ok: true as const, errors: {}, values: {}, formError: undefined, done: `${medium.name} added. Open it to record its lots.` };

@@ -6,6 +6,7 @@ import { MANAGERS, notFound, requireLabRole, isUuid } from "~/server/access.serv
 import { createLot, getMedium, LibraryError } from "~/server/library.server.ts";
 import { LotInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.medium.name ?? "Medium"} · Blindcut` }];
 
@@ -19,7 +20,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   if (!isUuid(params.mediumId) || !(await getMedium(lab.id, params.mediumId))) notFound();
-  const parsed = parseForm(LotInput, await request.formData());
+  const parsed = parseForm(LotInput, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
   try {
     await createLot(lab.id, user.id, params.mediumId, parsed.data);

@@ -6,6 +6,7 @@ import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { createProtocol } from "~/server/protocols.server.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { TEMPLATE_IDS, TEMPLATE_LABELS } from "~/domain/protocol.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "New protocol · Blindcut" }];
 
@@ -21,7 +22,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  const parsed = parseForm(NewProtocolSchema, await request.formData());
+  const parsed = parseForm(NewProtocolSchema, await readFormData(request));
   if (!parsed.ok) return data(parsed, { status: 400 });
   const { protocol } = await createProtocol(user, lab.id, parsed.data);
   return redirect(`/labs/${lab.id}/protocols/${protocol.id}/versions/1`);

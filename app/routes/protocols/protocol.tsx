@@ -7,6 +7,7 @@ import { ALL_ROLES, MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { UserFacingError } from "~/server/accounts.server.ts";
 import { canWriteProtocols, forbidDrafts, getProtocol, newDraftFrom, protocolIdParam, requireProtocolOfLab } from "~/server/protocols.server.ts";
 import { parseForm } from "~/lib/forms.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.name ?? "Protocol"} · Blindcut` }];
 
@@ -41,7 +42,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   await requireProtocolOfLab(lab.id, protocolId).catch(() => {
     throw data("Not found", { status: 404 });
   });
-  const parsed = parseForm(NewDraftSchema, await request.formData());
+  const parsed = parseForm(NewDraftSchema, await readFormData(request));
   if (!parsed.ok) return data({ error: Object.values(parsed.errors)[0] ?? "Check the form" }, { status: 400 });
   try {
     const created = await newDraftFrom(user, lab.id, protocolId, parsed.data.fromVersion);

@@ -20,6 +20,7 @@ import {
   sharpnessTesterHints,
   versionParam,
 } from "~/server/protocols.server.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.content.name ?? "Protocol"} · version ${data?.version ?? ""} · Blindcut` }];
 
@@ -62,7 +63,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   await requireProtocolOfLab(lab.id, protocolId).catch(() => {
     throw data("Not found", { status: 404 });
   });
-  const form = await request.formData();
+  const form = await readFormData(request);
   const intent = form.get("intent");
   if (intent !== "save" && intent !== "publish") return data<ActionResult>({ errors: {}, formError: "Unknown action: reload the page and try again." }, { status: 400 });
   const raw = form.get("content");

@@ -8,6 +8,7 @@ import { closedAnalysis, requireStudyForResults, studyOfLab } from "~/server/ana
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { closeStudy, LifecycleError, mailAnalysts } from "~/server/analysis/lifecycle.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Results · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -32,7 +33,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, ["owner", "lead"]);
   if (!isUuid(params.studyId) || !(await studyOfLab(lab.id, params.studyId))) notFound();
-  const form = await request.formData();
+  const form = await readFormData(request);
   if (form.get("intent") !== "close") return data({ error: "Unknown action" }, { status: 400 });
   try {
     const { study } = await closeStudy(user.id, lab.id, params.studyId);

@@ -5,6 +5,7 @@ import { requireLabRole, isUuid, notFound } from "~/server/access.server.ts";
 import { loadStudyRecord } from "~/server/analysis/study-data.server.ts";
 import { studyOfLab } from "~/server/analysis/access.server.ts";
 import { LifecycleError, mailAnalysts, unblindStudy } from "~/server/analysis/lifecycle.server.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Unblind the study · Blindcut" }];
 
@@ -18,7 +19,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, ["owner", "lead"]);
   if (!isUuid(params.studyId) || !(await studyOfLab(lab.id, params.studyId))) notFound();
-  const form = await request.formData();
+  const form = await readFormData(request);
   if (form.get("confirm") !== "unblind") return data({ error: "Tick the box to confirm that you want to unblind the study." }, { status: 400 });
   try {
     const { study } = await unblindStudy(user.id, lab.id, params.studyId);

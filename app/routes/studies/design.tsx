@@ -42,6 +42,7 @@ import {
   recipeFromForm,
   type StepId,
 } from "~/lib/study-input.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? STEP_LABELS[data.step] : "Design"} · ${data?.study.shortName ?? "Study"} · Blindcut` }];
@@ -102,7 +103,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const step = stepParam(params.step);
   // Another lab's study is 404 before the input is read.
   if (!(await studyOfLab(lab.id, studyId))) throw data("This study does not exist, or it belongs to another lab.", { status: 404 });
-  const form = await request.formData();
+  const form = await readFormData(request);
   const intent = String(form.get("intent") ?? "save");
   const values: Record<string, string> = {};
   for (const [k, v] of form) if (typeof v === "string") values[k] = v;

@@ -5,6 +5,7 @@ import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { createDraftStudy } from "~/server/studies/designer.server.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { DESIGN_LABELS, NewStudySchema, STUDY_DESIGNS } from "~/lib/study-input.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "New study · Blindcut" }];
 
@@ -15,7 +16,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
-  const parsed = parseForm(NewStudySchema, await request.formData());
+  const parsed = parseForm(NewStudySchema, await readFormData(request));
   if (!parsed.ok) return data(parsed, { status: 400 });
   const study = await createDraftStudy(user, lab.id, parsed.data);
   return redirect(`/labs/${lab.id}/studies/${study.id}/design/question`);

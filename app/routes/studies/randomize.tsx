@@ -11,6 +11,7 @@ import { randomizeStudy } from "~/server/studies/randomize.server.ts";
 import { schedulePreview } from "~/server/studies/schedule.server.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { SeedSchema } from "~/lib/study-input.ts";
+import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Randomize · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -61,7 +62,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
   const studyId = studyIdParam(params.studyId);
   if (!(await studyOfLab(lab.id, studyId))) throw data("This study does not exist, or it belongs to another lab.", { status: 404 });
-  const parsed = parseForm(SeedSchema, await request.formData());
+  const parsed = parseForm(SeedSchema, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, problems: [] as string[] }, { status: 400 });
   // The designer's own checks (blades retired or checked out since enrolment, a preparer
   // who is no longer an owner or lead, block sizes) come on top of designProblems.
