@@ -3,7 +3,7 @@
 // of the blades and arms: inventory numbers, steels, sources, heat-treatment notes,
 // arm and condition names and descriptions, and hardness as written with its unit.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { eq, inArray } from "drizzle-orm";
+import { eq, inArray, sql } from "drizzle-orm";
 import { AppClient } from "../support/app-client.ts";
 import { crawl, findLeaks } from "../support/crawler.ts";
 import { db, closeDb } from "~/server/db.server.ts";
@@ -64,6 +64,17 @@ describe("blinding crawl over the demo lab", () => {
     const blindedPages = pages.filter((p) => p.url.includes(blinded.id) && p.status === 200);
     console.log(`[blinding crawl] analyst: ${pages.length} pages and routes crawled, ${blindedPages.length} of the blinded study, ${secrets.length} identity strings checked`);
     expect(blindedPages.length).toBeGreaterThanOrEqual(5);
+    expect(findLeaks(pages, secrets)).toEqual([]);
+  });
+
+  it("no page or route sends a password hash, a session id or a token to anyone, the owner included", async () => {
+    const owner = await signedIn("owner@demo.test");
+    const sessionId = owner.cookies.get("blindcut_session")!;
+    const pages = await crawl(owner, ["/labs", `/labs/${labId}`, "/account", "/bench"], { maxPages: 300, extraParams: { labId: [labId] } });
+    const tokens = (await db().execute(sql`SELECT token_hash FROM invitations UNION SELECT token_hash FROM password_resets UNION SELECT id FROM sessions`)).rows.map((r) => String(r.token_hash ?? r.id));
+    const secrets = ["$argon2id$", "passwordHash", "password_hash", "tokenHash", decodeURIComponent(sessionId).split(".")[0], ...tokens];
+    console.log(`[secrets crawl] owner: ${pages.length} pages and routes crawled`);
+    expect(pages.length).toBeGreaterThan(50);
     expect(findLeaks(pages, secrets)).toEqual([]);
   });
 });
