@@ -7,20 +7,19 @@ import type { SampleSizePlan } from "~/domain/sample-size-plan.ts";
 import type { FieldErrors } from "~/lib/forms.ts";
 import { PLAN_DEFAULTS, PLAN_DESIGNS, PLAN_UNITS, type SampleSizeForm } from "~/lib/sample-size-input.ts";
 import { planFromQuery } from "~/server/sample-size.server.ts";
+import { latestPilotSd } from "~/server/analysis/pilot-sd.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sample size · Blindcut" }];
 
 /**
  * The SD measured in a finished study of the same protocol, offered as the SD to plan
- * with. PLACE FOR A LATER ISSUE: the study designer (issue 6, item 7) fills this from
- * the lab's finished studies; until then it is always null.
+ * with: the pooled SD of blade means of the lab's latest finished parallel study.
  */
 export type PilotSd = { sd: number; unit: string; studyName: string; blades: number } | null;
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, MANAGERS);
-  // PLACE FOR A LATER ISSUE: the SD of a finished study of the same protocol.
-  const pilotSd: PilotSd = null;
+  const pilotSd: PilotSd = await latestPilotSd(lab.id);
   const outcome = planFromQuery(new URL(request.url).searchParams);
   if (!outcome.ok) return data({ lab, pilotSd, ...outcome, input: null, plan: null }, { status: 400 });
   return { lab, pilotSd, ...outcome, errors: {} as FieldErrors };
@@ -146,7 +145,7 @@ function PlanResult({ plan, input, example }: { plan: SampleSizePlan; input: Sam
   );
 }
 
-/** Where a later issue offers the SD of a finished study of the same protocol. */
+/** The SD a finished study of the lab measured, offered with one click. */
 function PilotSdOffer({ pilotSd }: { pilotSd: PilotSd }) {
   if (!pilotSd) {
     return (
@@ -157,7 +156,8 @@ function PilotSdOffer({ pilotSd }: { pilotSd: PilotSd }) {
   }
   return (
     <p className="text-sm" data-testid="pilot-sd">
-      {pilotSd.studyName} measured an SD of <span className="figures font-bold">{fmt(pilotSd.sd, 3)} {pilotSd.unit}</span> over {pilotSd.blades} blades.
+      {pilotSd.studyName} measured an SD of <span className="figures font-bold">{fmt(pilotSd.sd, 3)} {pilotSd.unit}</span> over {pilotSd.blades} blades (pooled over its arms, blade means as the unit).{" "}
+      <Link to={`?design=two-sample&unit=${pilotSd.unit === "cuts" ? "cuts" : pilotSd.unit === "gf per cut" ? "gf-per-cut" : "gf"}&sd=${pilotSd.sd.toFixed(3)}`} className="font-bold">Plan with this SD</Link>
     </p>
   );
 }
