@@ -3,7 +3,7 @@
 // missing (Debian and npm packages), starts PostgreSQL and the local fakes, then
 // hands over to the TypeScript scripts.
 import { spawn, spawnSync } from "node:child_process";
-import { existsSync, statSync, mkdirSync, writeFileSync, readFileSync, rmSync } from "node:fs";
+import { existsSync, statSync, mkdirSync, writeFileSync, readFileSync, rmSync, readdirSync } from "node:fs";
 import path from "node:path";
 import { startPostgres, stopPostgres, ensureDatabase, databaseUrl, postgresInstalled, pgPort } from "./postgres.mjs";
 
@@ -100,10 +100,11 @@ async function main() {
   if (process.env.BLINDCUT_DEMO !== "0") run(process.execPath, [tsx, "scripts/demo-data.ts"], { env: { ...process.env, ...env } });
 
   if (command === "dev") {
-    spawnChild(process.execPath, ["node_modules/@react-router/dev/bin.js", "dev", "--port", process.env.PORT ?? "3000"], { ...env, BLINDCUT_DEMO_ACCOUNTS: "1" });
+    spawnChild(process.execPath, ["node_modules/@react-router/dev/bin.js", "dev", "--port", process.env.PORT ?? "3000"], { ...env, BLINDCUT_DEMO_ACCOUNTS: process.env.BLINDCUT_DEMO === "0" ? "0" : "1" });
   } else {
-    run(process.execPath, ["node_modules/@react-router/dev/bin.js", "build"]);
-    const app = spawnChild(process.execPath, ["scripts/server.mjs"], { ...env, NODE_ENV: "production", BLINDCUT_INSECURE_COOKIES: "1", BLINDCUT_DEMO_ACCOUNTS: "1", BLINDCUT_DEV_MAIL: "1", SESSION_SECRET: process.env.SESSION_SECRET ?? localSecret() });
+    if (buildIsStale()) run(process.execPath, ["node_modules/@react-router/dev/bin.js", "build"]);
+    else log("build is up to date");
+    const app = spawnChild(process.execPath, ["scripts/server.mjs"], { ...env, NODE_ENV: "production", BLINDCUT_INSECURE_COOKIES: "1", BLINDCUT_DEMO_ACCOUNTS: process.env.BLINDCUT_DEMO === "0" ? "0" : "1", BLINDCUT_DEV_MAIL: "1", SESSION_SECRET: process.env.SESSION_SECRET ?? localSecret() });
     app.on("exit", (code) => { log(`app exited (${code})`); cleanup(); process.exit(code ?? 1); });
     await announce(Number(process.env.PORT ?? 3000));
   }
@@ -125,6 +126,19 @@ async function announce(port) {
     "",
   ];
   console.log(lines.join("\n"));
+}
+
+/** Whether any source file is newer than the last production build (a second start skips the build). */
+function buildIsStale() {
+  const built = path.join(ROOT, "build/server/index.js");
+  if (!existsSync(built)) return true;
+  const builtAt = statSync(built).mtimeMs;
+  const newer = (p) => {
+    const st = statSync(p);
+    if (st.isDirectory()) return readdirSync(p).some((name) => newer(path.join(p, name)));
+    return st.mtimeMs > builtAt;
+  };
+  return ["app", "public", "vite.config.ts", "react-router.config.ts", "package-lock.json"].some((p) => existsSync(p) && newer(p));
 }
 
 // A secret kept in the local folder, so local sessions survive a restart.
