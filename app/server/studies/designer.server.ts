@@ -25,7 +25,7 @@ import {
   type Study,
 } from "../db/schema/index.ts";
 import { recordAudit } from "../audit.server.ts";
-import { designProblems, randomizationInput, StudyNotReadyError, StudyStateError } from "./randomize.server.ts";
+import { designProblems, loadDesign, randomizationInput, StudyNotReadyError, StudyStateError } from "./randomize.server.ts";
 import { generateSchedule } from "~/domain/randomization/index.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
 import {
@@ -446,17 +446,9 @@ export type StepStatus = { id: StepId; complete: boolean };
 /** Everything the designer's steps show, read in one transaction. */
 export async function getDesigner(labId: string, studyId: string) {
   return db().transaction(async (tx) => {
-    const [study] = await tx.select().from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
-    if (!study) return null;
-    const arms = await tx.select().from(studyArms).where(eq(studyArms.studyId, studyId)).orderBy(asc(studyArms.position), asc(studyArms.id));
-    const enrolled = await tx.select().from(studyBlades).where(eq(studyBlades.studyId, studyId)).orderBy(asc(studyBlades.id));
-    const testers = await tx
-      .select({ userId: studyTesters.userId, role: memberships.role })
-      .from(studyTesters)
-      .leftJoin(memberships, and(eq(memberships.userId, studyTesters.userId), eq(memberships.labId, labId)))
-      .where(eq(studyTesters.studyId, studyId))
-      .orderBy(asc(studyTesters.userId));
-    const protocol = await protocolOf(tx, labId, study);
+    const loadedDesign = await loadDesign(tx, labId, studyId, { lock: false });
+    if (!loadedDesign) return null;
+    const { study, arms, enrolled, testers, protocol } = loadedDesign;
     const members = await tx
       .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role })
       .from(memberships)

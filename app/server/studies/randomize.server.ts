@@ -1,4 +1,4 @@
-import { and, asc, count, eq, inArray, isNotNull, ne, sql } from "drizzle-orm";
+import { and, asc, count, eq, isNotNull, ne } from "drizzle-orm";
 import { db, type Transaction } from "../db.server.ts";
 import { memberships, protocolVersions, randomizationRolls, readings, runs, studies, studyArms, studyBlades, studyTesters, users } from "../db/schema/index.ts";
 import { recordAudit } from "../audit.server.ts";
@@ -20,9 +20,13 @@ export class StudyStateError extends Error {
   }
 }
 
-/** Loads everything a randomization depends on, in a stable order (ids sorted, so row order never matters). */
-export async function loadDesign(tx: Transaction, labId: string, studyId: string) {
-  const [study] = await tx.select().from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId))).for("update");
+/**
+ * Loads everything a randomization depends on, in a stable order (ids sorted, so row
+ * order never matters). `lock` holds the study row for the caller's transaction.
+ */
+export async function loadDesign(tx: Transaction, labId: string, studyId: string, { lock = true }: { lock?: boolean } = {}) {
+  const where = and(eq(studies.id, studyId), eq(studies.labId, labId));
+  const [study] = lock ? await tx.select().from(studies).where(where).for("update") : await tx.select().from(studies).where(where);
   if (!study) return null;
   const arms = await tx.select().from(studyArms).where(eq(studyArms.studyId, studyId)).orderBy(asc(studyArms.position), asc(studyArms.id));
   const enrolled = await tx.select().from(studyBlades).where(eq(studyBlades.studyId, studyId)).orderBy(asc(studyBlades.id));
