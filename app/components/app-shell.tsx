@@ -13,7 +13,7 @@ export function AppShell({ user, children }: { user: ShellUser | null; children:
       </a>
       <header className="border-b border-rule bg-card">
         <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-2">
-          <Link to="/" className="flex items-center gap-2 text-xl font-bold text-graphite-950 no-underline">
+          <Link to="/" className="flex min-h-target items-center gap-2 text-xl font-bold text-graphite-950 no-underline">
             <BrandMark />
             Blindcut
           </Link>
@@ -37,7 +37,7 @@ export function AppShell({ user, children }: { user: ShellUser | null; children:
           <div className="flex items-center gap-3" data-testid="account-area">
             {user ? (
               <>
-                <Link to="/account" className="text-graphite-800">{user.name}</Link>
+                <Link to="/account" className="inline-flex min-h-target items-center text-graphite-800">{user.name}</Link>
                 <Form method="post" action="/sign-out">
                   <button type="submit" className="min-h-target rounded border border-rule px-3 font-bold text-graphite-800 hover:bg-paper-deep">
                     Sign out

@@ -9,7 +9,7 @@ import type { VisualizationSpec } from "vega-embed";
  */
 export const CHART_COLORS = {
   ink: "#1f4e6b",
-  signal: "#b4490f",
+  signal: "#a8430d",
   graphite: "#4d535a",
   rule: "#d6d1c4",
   paper: "#fffdf8",
@@ -151,10 +151,12 @@ export function VegaChart({ spec, title, description, table, testId = "vega-char
         ) : null}
         {/* Vega sets its own role and label on the element it draws into, so the accessible name sits on a wrapper. */}
         <div role="img" aria-label={title} aria-describedby={descriptionId} data-testid={`${testId}-canvas`}>
-          <div ref={target} className="w-full" />
+          {/* Vega's marks carry no names of their own: the wrapper's name and description stand for the picture, the table for its numbers. */}
+          <div ref={target} className="w-full" aria-hidden="true" />
         </div>
       </div>
-      <div id={tableId} hidden={view !== "table"} className="max-h-96 overflow-y-auto">
+      {/* It scrolls on its own: focusable, so keyboard users can scroll it too. */}
+      <div id={tableId} hidden={view !== "table"} className="max-h-96 overflow-y-auto" tabIndex={0} role="region" aria-label={`${title}: the numbers`}>
         <table className="figures w-full border-collapse text-left">
           <caption className="mb-2 text-left text-sm text-graphite-600">{table.caption}</caption>
           <thead className="sticky top-0 bg-card">

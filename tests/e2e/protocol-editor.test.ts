@@ -44,13 +44,15 @@ describe("protocol editor", () => {
     const handle = page.getByRole("button", { name: /^Drag step 1:/ });
     await handle.focus();
     await page.keyboard.press("Space");
-    await expect(page.locator('[data-list="steps"] > li[data-dragging="true"]').count()).resolves.toBe(1);
+    await expect.poll(() => page.locator('[data-list="steps"] > li[data-dragging="true"]').count()).toBe(1);
+    const heard = () => page.locator('[id^="DndLiveRegion"]').allTextContents().then((t) => t.join(" "));
     await page.keyboard.press("ArrowDown");
-    await page.waitForTimeout(100);
+    // Drop only once the board says the step is over position 2, as a screen-reader user would.
+    await expect.poll(heard, { timeout: 10_000 }).toMatch(/is over position 2 of 3/);
     await page.keyboard.press("Space");
     await page.waitForFunction(() => document.querySelectorAll('[data-list="steps"] > li[data-dragging="true"]').length === 0);
 
-    expect(await abrasives(page)).toEqual(["Fine bench stone", "Coarse bench stone", "Plain leather strop"]);
+    await expect.poll(() => abrasives(page)).toEqual(["Fine bench stone", "Coarse bench stone", "Plain leather strop"]);
     // The screen reader heard where the step went (dnd-kit's live region).
     const announced = await page.locator('[id^="DndLiveRegion"]').allTextContents();
     expect(announced.join(" ")).toContain("dropped at position 2 of 3");
@@ -64,7 +66,7 @@ describe("protocol editor", () => {
 
     // The plain buttons do the same, without dragging.
     await page.getByRole("button", { name: /^Move step 3 up:/ }).click();
-    expect(await abrasives(page)).toEqual(["Fine bench stone", "Plain leather strop", "Coarse bench stone"]);
+    await expect.poll(() => abrasives(page)).toEqual(["Fine bench stone", "Plain leather strop", "Coarse bench stone"]);
 
     // A user's mistake comes back beside the field, with what was typed kept.
     const threshold = page.getByLabel(/^▲?Threshold/);
@@ -99,6 +101,7 @@ describe("protocol editor", () => {
     await page.getByRole("link", { name: "Hand rope test (demo)" }).click();
     await page.getByRole("link", { name: "Bench page" }).first().click();
     await page.waitForURL(/\/print$/);
+    await page.getByText("Cut-resistant gloves").first().waitFor();
     const text = await page.locator("main").innerText();
     expect(text).toContain("Cut-resistant gloves");
     expect(text).toContain("local regulations come first");

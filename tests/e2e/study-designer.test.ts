@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import type { BrowserContext, Locator, Page } from "playwright-core";
+import { keyboardDrag } from "../support/enrolment-drag.ts";
 import { launchBrowser, screenshot, watchConsole } from "../support/browser.ts";
 
 let browser: BrowserContext;
@@ -14,19 +15,6 @@ const ARM_1 = "Tempered low (e2e)";
 const ARM_2 = "Tempered high (e2e)";
 
 const box = (page: Page, title: string) => page.locator("section[data-box]").filter({ has: page.getByRole("heading", { name: new RegExp(`^Arm: ${title.replace(/[()]/g, "\\$&")}`) }) });
-
-/** Drag and drop by keyboard: focus the handle, Space picks up, ArrowRight moves box by box, Space drops. */
-async function keyboardDrag(page: Page, handle: Locator, steps: number) {
-  await handle.focus();
-  await page.keyboard.press("Space");
-  await expect.poll(() => page.locator('[data-board="enrolment"] li[data-dragging="true"]').count()).toBe(1);
-  for (let i = 0; i < steps; i++) {
-    await page.keyboard.press("ArrowRight");
-    await page.waitForTimeout(100);
-  }
-  await page.keyboard.press("Space");
-  await page.waitForFunction(() => document.querySelectorAll('[data-board="enrolment"] li[data-dragging="true"]').length === 0);
-}
 
 describe("study designer", () => {
   it("a lead designs a parallel study, enrols blades by keyboard drag and drop and by the table, randomizes with a typed seed and opens the label sheet", async () => {

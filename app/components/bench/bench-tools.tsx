@@ -148,19 +148,21 @@ function CsvImport({ labId, view, onImported }: { labId: string; view: BenchRunV
           Blindcut's layout: a header row <code>{isForce ? "cut,position,kind,value_gf" : "stroke,depth_mm"}</code>
           {isForce ? " (kind: check or confirmation; may be left out)" : ""}. Any other export: choose its columns below. Every row is imported, or none.
         </p>
-        <input
-          type="file"
-          accept=".csv,text/csv,text/plain"
-          aria-label="CSV file"
-          className="min-h-target"
-          onChange={async (e) => {
-            const file = e.currentTarget.files?.[0];
-            if (file) {
-              setCsv(await file.text());
-              setPreview(null);
-            }
-          }}
-        />
+        <label className="flex flex-col gap-1 font-bold">
+          CSV file
+          <input
+            type="file"
+            accept=".csv,text/csv,text/plain"
+            className="min-h-target font-normal"
+            onChange={async (e) => {
+              const file = e.currentTarget.files?.[0];
+              if (file) {
+                setCsv(await file.text());
+                setPreview(null);
+              }
+            }}
+          />
+        </label>
         <label className="flex flex-col gap-1 font-bold">
           Or paste the CSV
           <textarea value={csv} onChange={(e) => { setCsv(e.currentTarget.value); setPreview(null); }} rows={4} className="figures rounded border border-graphite-400 bg-paper p-2 text-sm" />

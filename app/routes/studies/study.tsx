@@ -77,6 +77,10 @@ export default function StudyPage({ loaderData }: Route.ComponentProps) {
                 Start the study
               </Link>
             ) : null}
+            {study.state === "running" ? <Link to={`${base}/progress`} className={action}>Progress</Link> : null}
+            {study.state === "running" || study.state === "closed" || study.state === "unblinded" ? (
+              <Link to={`${base}/results`} className={action}>{study.state === "running" ? "Close and results" : "Results"}</Link>
+            ) : null}
             <Link to={`${base}/design/question`} className={action}>The frozen design</Link>
           </p>
         </>
