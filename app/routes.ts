@@ -3,6 +3,7 @@ import { type RouteConfig, index, route, prefix } from "@react-router/dev/routes
 export default [
   index("routes/home.tsx"),
   route("healthz", "routes/api/healthz.ts"),
+  route("bench-floor", "routes/api/trivial.ts"),
 
   route("sign-up", "routes/auth/sign-up.tsx"),
   route("sign-in", "routes/auth/sign-in.tsx"),

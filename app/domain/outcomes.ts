@@ -193,29 +193,30 @@ export function decideRunState(protocol: ForceProtocol, readings: readonly Force
   const checkReadings = new Map<number, Map<string, number>>();
   const confirmations = new Map<number, number>();
   current.forEach((r, i) => {
-    const label = r.id !== undefined ? `reading ${r.id}` : `reading ${i}`;
+    // Built only for an error message: this loop runs for every reading at every decision.
+    const label = () => (r.id !== undefined ? `reading ${r.id}` : `reading ${i}`);
     if (typeof r.value !== "number" || !Number.isFinite(r.value) || r.value < 0) {
-      throw new Error(`${label}: value must be a finite number >= 0 gf, got ${String(r.value)}`);
+      throw new Error(`${label()}: value must be a finite number >= 0 gf, got ${String(r.value)}`);
     }
     if (!scheduleSet.has(r.cut)) {
-      throw new Error(`${label}: cut ${String(r.cut)} is not a check in the schedule (0, every ${protocol.checkEvery}, cap ${protocol.cap})`);
+      throw new Error(`${label()}: cut ${String(r.cut)} is not a check in the schedule (0, every ${protocol.checkEvery}, cap ${protocol.cap})`);
     }
     if (r.kind === "check") {
-      if (!positions.has(r.position)) throw new Error(`${label}: position "${r.position}" is not one of the protocol's positions`);
+      if (!positions.has(r.position)) throw new Error(`${label()}: position "${r.position}" is not one of the protocol's positions`);
       let m = checkReadings.get(r.cut);
       if (!m) checkReadings.set(r.cut, (m = new Map()));
       if (m.has(r.position)) {
-        throw new Error(`${label}: a second check reading at cut ${r.cut}, position "${r.position}"; a correction must supersede the earlier reading`);
+        throw new Error(`${label()}: a second check reading at cut ${r.cut}, position "${r.position}"; a correction must supersede the earlier reading`);
       }
       m.set(r.position, r.value);
     } else if (r.kind === "confirmation") {
-      if (r.cut === 0) throw new Error(`${label}: no confirmation is taken at the baseline`);
+      if (r.cut === 0) throw new Error(`${label()}: no confirmation is taken at the baseline`);
       if (confirmations.has(r.cut)) {
-        throw new Error(`${label}: a second confirmation reading at cut ${r.cut}; a correction must supersede the earlier one`);
+        throw new Error(`${label()}: a second confirmation reading at cut ${r.cut}; a correction must supersede the earlier one`);
       }
       confirmations.set(r.cut, r.value);
     } else {
-      throw new Error(`${label}: kind must be "check" or "confirmation", got ${String(r.kind)}`);
+      throw new Error(`${label()}: kind must be "check" or "confirmation", got ${String(r.kind)}`);
     }
   });
   const lastReadCut = Math.max(-1, ...checkReadings.keys(), ...confirmations.keys());

@@ -35,7 +35,9 @@ export function benchForceDecision(protocol: ForceProtocol, readings: readonly F
     if (checksOnly.status === "awaiting-check" && checksOnly.nextCut === cut) {
       return { state: checksOnly, ahead: current.filter((r) => r.cut > cut || (r.cut === cut && r.kind === "confirmation")).length };
     }
-    const withConfirmation = decideRunState(protocol, upTo(cut, true));
+    // Without a confirmation at this cut both prefixes are the same readings: one decision serves.
+    const confirmationHere = readings.some((r) => r.cut === cut && r.kind !== "check");
+    const withConfirmation = confirmationHere ? decideRunState(protocol, upTo(cut, true)) : checksOnly;
     if (!withConfirmation.continue || withConfirmation.nextCut === cut) {
       const end = withConfirmation.endCut ?? cut;
       const later = current.filter((r) => r.cut > end).length;

@@ -4,7 +4,7 @@ import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { ResultsCharts } from "~/components/results-charts.tsx";
 import { ResultsTables } from "~/components/results-tables.tsx";
 import { requireLabRole, isUuid, notFound } from "~/server/access.server.ts";
-import { closedAnalysis, requireStudyForResults, studyOfLab } from "~/server/analysis/access.server.ts";
+import { closedAnalysis, requireStudySummaryForResults, studyOfLab } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { closeStudy, LifecycleError, mailAnalysts } from "~/server/analysis/lifecycle.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
@@ -13,7 +13,8 @@ import { readFormData } from "~/server/form-data.server.ts";
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Results · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { lab, role, record } = await requireStudyForResults(request, params.labId, params.studyId);
+  // The tables need no per-run outcomes (the charts fetch them from analysis.json).
+  const { lab, role, record } = await requireStudySummaryForResults(request, params.labId, params.studyId, { perRunAnalysis: false });
   const { study } = record;
   const closed = study.state === "closed" || study.state === "unblinded";
   const base = {

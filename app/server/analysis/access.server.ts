@@ -3,7 +3,7 @@ import { and, eq } from "drizzle-orm";
 import { db } from "../db.server.ts";
 import { studies } from "../db/schema/index.ts";
 import { requireLabRole, notFound, isUuid } from "../access.server.ts";
-import { loadStudyRecord } from "./study-data.server.ts";
+import { loadStudyRecord, loadStudySummary } from "./study-data.server.ts";
 import type { StudyAnalysis } from "~/domain/study-analysis.ts";
 
 /** Owners, leads and analysts read results; testers never do. */
@@ -14,6 +14,18 @@ export async function requireStudyForResults(request: Request, labId: string | u
   const access = await requireLabRole(request, labId, RESULT_READERS);
   if (!isUuid(studyId)) notFound();
   const record = await loadStudyRecord(access.lab.id, studyId);
+  if (!record) notFound();
+  return { ...access, record };
+}
+
+/**
+ * As requireStudyForResults, with the study's summary only (no readings, events or
+ * people): for pages that show the stored snapshot, whose cost must not grow with the data.
+ */
+export async function requireStudySummaryForResults(request: Request, labId: string | undefined, studyId: string | undefined, options: { perRunAnalysis?: boolean } = {}) {
+  const access = await requireLabRole(request, labId, RESULT_READERS);
+  if (!isUuid(studyId)) notFound();
+  const record = await loadStudySummary(access.lab.id, studyId, undefined, options);
   if (!record) notFound();
   return { ...access, record };
 }

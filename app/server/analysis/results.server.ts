@@ -6,7 +6,7 @@ import type { StudyRecord } from "./study-data.server.ts";
  * stored analysis. Arm names appear only when the study is unblinded: before that
  * this module never reads them, so nothing downstream can leak them.
  */
-export function armNames(record: StudyRecord): Map<string, { name: string; description: string }> | null {
+export function armNames(record: Pick<StudyRecord, "study" | "arms">): Map<string, { name: string; description: string }> | null {
   if (record.study.state !== "unblinded") return null;
   return new Map(record.arms.map((a) => [a.neutralLabel ?? a.id, { name: a.name, description: a.description }]));
 }

@@ -1,4 +1,4 @@
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, eq, getTableColumns, inArray, sql } from "drizzle-orm";
 import { db, type DbOrTx } from "../db.server.ts";
 import { protocolVersions, readings, runEvents, runs, studies, studyArms, studyBlades, users } from "../db/schema/index.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
@@ -6,17 +6,37 @@ import type { PrimaryOutcome, StudyAnalysisInput } from "~/domain/study-analysis
 import { analysisInputFromRaw, type BundleRaw } from "~/domain/bundle.ts";
 
 /**
+ * The study with its protocol version, arms and runs, without readings, events or
+ * people: what the results page and the chart data need (a closed study's outcomes come
+ * from its stored snapshot). Four queries whatever the study's size. With
+ * `perRunAnalysis: false` the snapshot's per-run part (each run's outcomes and curve, most
+ * of its size) is left in the database and read back as an empty list: for pages that
+ * show only the arms, comparisons and flow.
+ */
+export async function loadStudySummary(labId: string, studyId: string, tx: DbOrTx = db(), options: { perRunAnalysis?: boolean } = {}) {
+  const columns = options.perRunAnalysis === false
+    ? { ...getTableColumns(studies), blindedSnapshot: sql<Record<string, unknown> | null>`jsonb_set(${studies.blindedSnapshot}, '{analysis,runs}', '[]'::jsonb)` }
+    : getTableColumns(studies);
+  const [study] = await tx.select(columns).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
+  if (!study) return null;
+  const [protocol] = study.protocolVersionId ? await tx.select().from(protocolVersions).where(eq(protocolVersions.id, study.protocolVersionId)) : [];
+  const arms = await tx.select().from(studyArms).where(eq(studyArms.studyId, studyId)).orderBy(asc(studyArms.neutralLabel), asc(studyArms.position));
+  const runRows = await tx.select().from(runs).where(eq(runs.studyId, studyId)).orderBy(asc(runs.schedulePosition));
+  return { study, protocol: protocol ?? null, arms, runs: runRows };
+}
+
+export type StudySummary = NonNullable<Awaited<ReturnType<typeof loadStudySummary>>>;
+
+/**
  * Everything about a study that analysis, reports and exports need, read in a fixed
  * number of queries (not one per run). Arm names are returned separately from the
  * analysis input, which knows arms only by their neutral labels.
  */
 export async function loadStudyRecord(labId: string, studyId: string, tx: DbOrTx = db()) {
-  const [study] = await tx.select().from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
-  if (!study) return null;
-  const [protocol] = study.protocolVersionId ? await tx.select().from(protocolVersions).where(eq(protocolVersions.id, study.protocolVersionId)) : [];
-  const arms = await tx.select().from(studyArms).where(eq(studyArms.studyId, studyId)).orderBy(asc(studyArms.neutralLabel), asc(studyArms.position));
+  const summary = await loadStudySummary(labId, studyId, tx);
+  if (!summary) return null;
+  const { study, protocol, arms, runs: runRows } = summary;
   const enrolled = await tx.select().from(studyBlades).where(eq(studyBlades.studyId, studyId));
-  const runRows = await tx.select().from(runs).where(eq(runs.studyId, studyId)).orderBy(asc(runs.schedulePosition));
   const runIds = runRows.map((r) => r.id);
   const readingRows = runIds.length ? await tx.select().from(readings).where(inArray(readings.runId, runIds)).orderBy(asc(readings.enteredAt), asc(readings.id)) : [];
   const eventRows = runIds.length ? await tx.select().from(runEvents).where(inArray(runEvents.runId, runIds)).orderBy(asc(runEvents.enteredAt)) : [];
@@ -24,7 +44,7 @@ export async function loadStudyRecord(labId: string, studyId: string, tx: DbOrTx
     .select({ id: users.id, name: users.name })
     .from(users)
     .where(inArray(users.id, [...new Set([...runRows.map((r) => r.testerId), ...readingRows.map((r) => r.enteredBy)])].concat(["00000000-0000-0000-0000-000000000000"])));
-  return { study, protocol: protocol ?? null, arms, enrolled, runs: runRows, readings: readingRows, events: eventRows, people };
+  return { study, protocol, arms, enrolled, runs: runRows, readings: readingRows, events: eventRows, people };
 }
 
 export type StudyRecord = NonNullable<Awaited<ReturnType<typeof loadStudyRecord>>>;

@@ -130,7 +130,8 @@ export async function saveReading(ctx: SaveContext, input: ReadingInput) {
     const row = await insertReading(tx, run, ctx.userId, { ...input, supersedesId: null, reason: null });
     const decision = decideWith(run, [...all, row]);
     await applyDecision(tx, run, decision, ctx.userId);
-    return { replay: false, reading: readingJson(row), run: await runStateJson(tx, ctx.labId, ctx.runId) };
+    // The run is locked and `all` plus `row` are all its readings: no second read, no second decision.
+    return { replay: false, reading: readingJson(row), run: await runStateJson(tx, ctx.labId, ctx.runId, { rows: [...all, row], decision: { attempt: run.attempt, value: decision } }) };
   });
 }
 

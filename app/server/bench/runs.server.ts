@@ -124,8 +124,15 @@ export function decisionOf(content: ProtocolContent, rows: readonly ReadingRow[]
   return decideBenchRun(benchProtocol(content), rows.filter((r) => r.attempt === attempt).map(toBenchReading));
 }
 
-/** The run's state as the bench's JSON carries it (the server's decision). */
-export async function runStateJson(tx: Transaction | ReturnType<typeof db>, labId: string, runId: string) {
+const byEntry = (a: ReadingRow, b: ReadingRow) => a.enteredAt.getTime() - b.enteredAt.getTime() || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
+
+/**
+ * The run's state as the bench's JSON carries it (the server's decision). A caller that
+ * holds the run locked and already has every reading of it (saving one) passes them as
+ * `known`, with the decision it computed for an attempt: no second read of the readings,
+ * and the stop rule is not run again when the attempt is unchanged.
+ */
+export async function runStateJson(tx: Transaction | ReturnType<typeof db>, labId: string, runId: string, known?: { rows: readonly ReadingRow[]; decision: { attempt: number; value: RunDecision } }) {
   const [run] = await tx
     .select({ id: runs.id, state: runs.state, attempt: runs.attempt, endCut: runs.endCut, checklist: runs.checklist, studyState: studies.state, content: protocolVersions.content })
     .from(runs)
@@ -133,7 +140,7 @@ export async function runStateJson(tx: Transaction | ReturnType<typeof db>, labI
     .innerJoin(protocolVersions, eq(protocolVersions.id, studies.protocolVersionId))
     .where(and(eq(runs.id, runId), eq(runs.labId, labId)));
   if (!run) throw new BenchError("No such run in this lab.", 404);
-  const rows = (await tx.select(readingColumns).from(readings).where(eq(readings.runId, runId)).orderBy(asc(readings.enteredAt), asc(readings.id))) as ReadingRow[];
+  const rows = known ? [...known.rows].sort(byEntry) : ((await tx.select(readingColumns).from(readings).where(eq(readings.runId, runId)).orderBy(asc(readings.enteredAt), asc(readings.id))) as ReadingRow[]);
   return {
     id: run.id,
     state: run.state,
@@ -142,7 +149,7 @@ export async function runStateJson(tx: Transaction | ReturnType<typeof db>, labI
     endCut: run.endCut,
     studyState: run.studyState,
     needsSetup: run.state === "waiting" || (run.state === "in_progress" && setupAttempt(run.checklist) !== run.attempt),
-    decision: decisionOf(run.content, rows, run.attempt),
+    decision: known && known.decision.attempt === run.attempt ? known.decision.value : decisionOf(run.content, rows, run.attempt),
     readings: rows.map(readingJson),
   };
 }
