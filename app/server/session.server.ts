@@ -37,8 +37,21 @@ async function readSessionId(request: Request): Promise<string | null> {
 
 export type SessionUser = Pick<User, "id" | "email" | "name"> & { sessionId: string };
 
+// The root loader and the route's own loader both ask for the user of one request:
+// look it up once per request object (never across requests, so a sign-out still takes effect at once).
+const perRequest = new WeakMap<Request, Promise<SessionUser | null>>();
+
 /** The signed-in user, checked against the sessions table on every request. */
-export async function getSessionUser(request: Request): Promise<SessionUser | null> {
+export function getSessionUser(request: Request): Promise<SessionUser | null> {
+  let found = perRequest.get(request);
+  if (!found) {
+    found = lookUpSessionUser(request);
+    perRequest.set(request, found);
+  }
+  return found;
+}
+
+async function lookUpSessionUser(request: Request): Promise<SessionUser | null> {
   const id = await readSessionId(request);
   if (!id) return null;
   const [row] = await db()
