@@ -1,4 +1,5 @@
 import { afterAll, describe, expect, it } from "vitest";
+import * as ss from "simple-statistics";
 import { eq } from "drizzle-orm";
 import { createStudyFixture } from "../support/study-fixture.ts";
 import { finishAllRuns } from "../support/world.ts";
@@ -20,6 +21,8 @@ describe("the sample-size planner offers the SD of a finished study", () => {
     const arms = (study.blindedSnapshot as { analysis: StudyAnalysis }).analysis.parallel!.arms;
     // The offer is the pooled SD of the arms' blade means, recomputed here from the stored snapshot.
     const expected = pooledSd(arms.map((a) => ({ n: a.nBlades, sd: a.descriptives.sd! })))!;
+    // Source: simple-statistics (independent library): each arm's SD from its blade means.
+    for (const a of arms) expect(a.descriptives.sd).toBeCloseTo(ss.sampleStandardDeviation(a.bladeMeans.map((b) => b.mean)), 10);
     const html = (await (await f.lead.client.get(planner)).text()).replace(/<!-- -->/g, "");
     expect(html).toContain(`Fixture study ${f.tag} measured an SD of`);
     expect(html).toContain(`sd=${expected.sd.toFixed(3)}`);

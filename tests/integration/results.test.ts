@@ -13,6 +13,8 @@ import { recordSimulatedRun } from "~/server/simulated-runs.server.ts";
 import { bundleJsonSchema } from "../../scripts/bundle-schema.ts";
 import { reanalyze } from "../../scripts/reanalyze.ts";
 import { readFileSync } from "node:fs";
+import Papa from "papaparse";
+import * as ss from "simple-statistics";
 
 afterAll(closeDb);
 
@@ -114,6 +116,15 @@ describe("closing, results and unblinding", () => {
     const slow = chart.armIntervals.find((a: { arm: string }) => a.arm === slowLabel);
     const fast = chart.armIntervals.find((a: { arm: string }) => a.arm !== slowLabel);
     expect(slow.mean).toBeGreaterThan(fast.mean);
+    // Source: simple-statistics (independent library): the arm means and SDs stored at closing equal
+    // those of the blade means recomputed from the per-run outcomes CSV.
+    const outcomes = Papa.parse<Record<string, string>>(await (await f.analyst.client.get(`/labs/${f.labId}/api/studies/${f.studyId}/outcomes.csv`)).text(), { header: true, skipEmptyLines: true }).data;
+    for (const arm of chart.armIntervals as { arm: string; mean: number }[]) {
+      const byBlade = new Map<string, number[]>();
+      for (const row of outcomes.filter((o) => o.arm_label === arm.arm)) byBlade.set(row.blade_code, [...(byBlade.get(row.blade_code) ?? []), Number(row.cuts_to_threshold)]);
+      const bladeMeans = [...byBlade.values()].map((v) => ss.mean(v));
+      expect(arm.mean).toBeCloseTo(ss.mean(bladeMeans), 10);
+    }
     expect(chart.effects).toHaveLength(1);
     expect(chart.survival.length).toBeGreaterThan(2);
     const html = await (await f.analyst.client.get(`/labs/${f.labId}/studies/${f.studyId}/results`)).text();

@@ -1,4 +1,5 @@
 import { describe as suite, it, expect } from "vitest";
+import * as ss from "simple-statistics";
 import { analyzeParallelArms, analyzeWithinBlade, welchT, pairedT, type RunOutcomeRecord } from "~/domain/stats/index.ts";
 
 const run = (bladeId: string, arm: string, value: number, censored = false): RunOutcomeRecord => ({ bladeId, arm, value, censored });
@@ -19,6 +20,10 @@ suite("parallel arms, blade as the unit", () => {
     expect(a.nRuns).toBe(9);
     expect(a.bladeMeans.map((b) => b.mean)).toEqual([110, 95, 140]);
     expect(a.descriptives.mean).toBeCloseTo(115, 12);
+    // Source: simple-statistics (independent library), on the blade means 110, 95 and 140.
+    expect(a.descriptives.mean).toBeCloseTo(ss.mean([110, 95, 140]), 12);
+    expect(a.descriptives.sd).toBeCloseTo(ss.sampleStandardDeviation([110, 95, 140]), 12);
+    expect(a.descriptives.median).toBeCloseTo(ss.median([110, 95, 140]), 12);
     expect(r.nBlades).toBe(6);
     expect(r.nRuns).toBe(18);
   });
@@ -66,6 +71,9 @@ suite("within-blade differences", () => {
     ];
     const r = analyzeWithinBlade(runs, { conditions: ["coarse", "polished"] });
     expect(r.differences.map((d) => d.difference)).toEqual([40, 20, 40, 25]);
+    // Source: simple-statistics (independent library), on the per-blade differences.
+    expect(r.descriptives.mean).toBeCloseTo(ss.mean([40, 20, 40, 25]), 12);
+    expect(r.descriptives.sd).toBeCloseTo(ss.sampleStandardDeviation([40, 20, 40, 25]), 12);
     expect(r.nBlades).toBe(4);
     expect(r.warnings.join(" ")).toMatch(/lack one condition.*b5/);
     expect(r.warnings.join(" ")).toMatch(/1 of 10 runs \(10%\) are censored/);
