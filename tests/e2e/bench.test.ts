@@ -4,81 +4,20 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import type { BrowserContext, Page } from "playwright-core";
 import { launchBrowser, screenshot, watchConsole } from "../support/browser.ts";
+import { closeDemoBenchDb, createDemoBenchStudy, readingCount, signInAs } from "../support/demo-bench-study.ts";
 
 let browser: BrowserContext;
 let study: { shortName: string; codes: Map<string, string>; runIds: string[]; labId: string };
-let readingsOf: (runId: string) => Promise<number>;
-
-/** A running study in the e2e database's demo lab, assigned to the demo tester, built through the app's own server code. */
-async function createBenchStudy() {
-  process.env.DATABASE_URL = inject("e2eDatabaseUrl");
-  const { db } = await import("~/server/db.server.ts");
-  const { and, asc, eq, sql } = await import("drizzle-orm");
-  const schema = await import("~/server/db/schema/index.ts");
-  const { createProtocolTx, publishVersionTx, saveDraftTx } = await import("~/server/protocols.server.ts");
-  const { randomizeStudyTx, startStudyTx } = await import("~/server/studies/randomize.server.ts");
-  const { templateContent } = await import("~/domain/protocol.ts");
-  const tag = Math.random().toString(36).slice(2, 7).toUpperCase();
-  const [lab] = await db().select({ id: schema.labs.id }).from(schema.labs).where(eq(schema.labs.isDemo, true));
-  const userId = async (email: string) => (await db().select({ id: schema.users.id }).from(schema.users).where(eq(schema.users.email, email)))[0].id;
-  const leadId = await userId("lead@demo.test");
-  const testerId = await userId("tester@demo.test");
-  const shortName = `Bench check ${tag}`;
-  const studyId = await db().transaction(async (tx) => {
-    const { protocol } = await createProtocolTx(tx, { id: leadId }, lab.id, { template: "rope", name: `Bench e2e rope ${tag}` });
-    const content = templateContent("rope", `Bench e2e rope ${tag}`);
-    content.replicatesPerBlade = 1;
-    content.edgeForce = { ...content.edgeForce!, positions: ["heel", "tip"], checkEveryCuts: 1, capCuts: 3 };
-    await saveDraftTx(tx, lab.id, protocol.id, 1, content);
-    const version = await publishVersionTx(tx, { id: leadId }, lab.id, protocol.id, 1);
-    const bladeRows = await tx.select({ id: schema.blades.id }).from(schema.blades).where(eq(schema.blades.labId, lab.id)).orderBy(asc(schema.blades.inventoryNumber)).limit(4);
-    const [s] = await tx
-      .insert(schema.studies)
-      .values({
-        labId: lab.id,
-        shortName,
-        question: "Does the bench save every reading?",
-        protocolVersionId: version.id,
-        design: "parallel",
-        analysisPlan: { alpha: 0.05, comparisons: "all_pairs", referenceArmId: null, tests: ["welch_t"] },
-        randomization: { method: "complete", blockSizes: [], stratifyByTester: false, sittingLength: 2, replicates: 1 },
-        createdBy: leadId,
-      })
-      .returning();
-    const arms = await tx.insert(schema.studyArms).values([0, 1].map((i) => ({ studyId: s.id, labId: lab.id, name: `E2E arm ${i}`, position: i }))).returning();
-    await tx.insert(schema.studyBlades).values(bladeRows.map((b, i) => ({ studyId: s.id, labId: lab.id, bladeId: b.id, armId: arms[i % 2].id })));
-    await tx.insert(schema.studyTesters).values({ studyId: s.id, userId: testerId });
-    await randomizeStudyTx(tx, leadId, lab.id, s.id, `bench-e2e-${tag}`);
-    await startStudyTx(tx, leadId, lab.id, s.id);
-    return s.id;
-  });
-  const rows = await db()
-    .select({ id: schema.runs.id, code: schema.studyBlades.blindCode })
-    .from(schema.runs)
-    .innerJoin(schema.studyBlades, eq(schema.studyBlades.id, schema.runs.studyBladeId))
-    .where(eq(schema.runs.studyId, studyId))
-    .orderBy(asc(schema.runs.schedulePosition));
-  readingsOf = async (runId) => (await db().select({ n: sql<number>`count(*)::int` }).from(schema.readings).where(and(eq(schema.readings.runId, runId))))[0].n;
-  return { shortName, codes: new Map(rows.map((r) => [r.id, r.code!])), runIds: rows.map((r) => r.id), labId: lab.id };
-}
+const readingsOf = readingCount;
 
 beforeAll(async () => {
-  study = await createBenchStudy();
+  study = await createDemoBenchStudy("Bench check", { cap: 3, question: "Does the bench save every reading?" });
   browser = await launchBrowser();
 });
 afterAll(async () => {
   await browser?.close();
-  const { closeDb } = await import("~/server/db.server.ts");
-  await closeDb();
+  await closeDemoBenchDb();
 });
-
-async function signIn(page: Page, email: string) {
-  await page.goto(`${inject("baseUrl")}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("blindcut-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
-}
 
 async function openNextRun(page: Page) {
   await page.goto(`${inject("baseUrl")}/bench`);
@@ -122,7 +61,7 @@ describe("the bench", () => {
     const page = await browser.newPage();
     page.setDefaultTimeout(15_000);
     const errors = watchConsole(page);
-    await signIn(page, "tester@demo.test");
+    await signInAs(page, "tester@demo.test");
     await page.getByRole("link", { name: "My runs" }).first().click();
     await page.waitForURL(/\/bench$/);
     await page.getByTestId("queue-study").filter({ hasText: study.shortName }).waitFor();

@@ -3,7 +3,7 @@ import type { BrowserContext, Page } from "playwright-core";
 import { writeFileSync, mkdtempSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { launchBrowser, screenshot, watchConsole } from "../support/browser.ts";
+import { launchBrowser, screenshot, signInAs, watchConsole } from "../support/browser.ts";
 import { TINY_PNG } from "../support/images.ts";
 
 let browser: BrowserContext;
@@ -13,14 +13,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await browser?.close();
 });
-
-export async function signInAs(page: Page, email: string) {
-  await page.goto(`${inject("baseUrl")}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("blindcut-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
-}
 
 describe("the lab's library", () => {
   it("a lead adds a blade with a photo, sees the upload progress, and finds the blade in the filtered table", async () => {

@@ -3,7 +3,7 @@ import type { BrowserContext, Page } from "playwright-core";
 import { execFileSync } from "node:child_process";
 import { mkdirSync, readFileSync, statSync } from "node:fs";
 import path from "node:path";
-import { launchBrowser, screenshot, screenshotDir, watchConsole } from "../support/browser.ts";
+import { launchBrowser, screenshot, screenshotDir, signInAs, watchConsole } from "../support/browser.ts";
 
 let browser: BrowserContext;
 beforeAll(async () => {
@@ -13,20 +13,11 @@ afterAll(async () => {
   await browser?.close();
 });
 
-async function signIn(page: Page, email: string) {
-  await page.context().clearCookies();
-  await page.goto(`${inject("baseUrl")}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("blindcut-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
-}
-
 describe("results in the browser", () => {
   it("an analyst sees blinded results with charts and their table view; the lead unblinds and the names appear; the report prints to PDF", async () => {
     const page = await browser.newPage();
     const errors = watchConsole(page);
-    await signIn(page, "analyst@demo.test");
+    await signInAs(page, "analyst@demo.test");
     await page.getByRole("link", { name: /^Results/ }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}\/results$/);
     await page.getByRole("link", { name: /Finish trial F-1/ }).click();
@@ -48,7 +39,7 @@ describe("results in the browser", () => {
     await expect.poll(() => curves.locator("table tbody tr").count()).toBeGreaterThan(3);
 
     // The lead unblinds on the record.
-    await signIn(page, "lead@demo.test");
+    await signInAs(page, "lead@demo.test");
     await page.goto(resultsUrl);
     await page.getByRole("link", { name: "Unblind…" }).click();
     await page.getByText("Unblinding cannot be undone.").waitFor();
@@ -56,7 +47,7 @@ describe("results in the browser", () => {
     await page.getByRole("button", { name: "Unblind the study" }).click();
     await page.getByTestId("unblinded-note").waitFor();
 
-    await signIn(page, "analyst@demo.test");
+    await signInAs(page, "analyst@demo.test");
     await page.goto(resultsUrl);
     await page.getByTestId("unblinded-note").waitFor();
     const labelsAfter = (await page.getByTestId("arm-label").allTextContents()).join(" ");

@@ -1,5 +1,6 @@
 // Debian's Chromium driven by playwright-core, with a fresh profile per test file.
 import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { inject } from "vitest";
 import { mkdirSync, mkdtempSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -37,4 +38,15 @@ export function watchConsole(page: Page) {
 export async function screenshot(page: Page, name: string) {
   mkdirSync(screenshotDir, { recursive: true });
   await page.screenshot({ path: path.join(screenshotDir, `${name}.png`), fullPage: true });
+}
+
+/** Signs in through the form, from a clean cookie jar. */
+export async function signInAs(page: Page, email: string, password = "blindcut-demo") {
+  await page.context().clearCookies();
+  await page.goto(`${inject("baseUrl")}/sign-in`);
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+  await page.getByTestId("account-area").getByRole("button", { name: "Sign out" }).waitFor();
 }

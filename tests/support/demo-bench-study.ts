@@ -6,7 +6,7 @@ import type { Page } from "playwright-core";
 
 export type DemoBenchStudy = { labId: string; studyId: string; shortName: string; runIds: string[]; codes: Map<string, string> };
 
-export async function createDemoBenchStudy(label: string): Promise<DemoBenchStudy> {
+export async function createDemoBenchStudy(label: string, options: { cap?: number; question?: string } = {}): Promise<DemoBenchStudy> {
   process.env.DATABASE_URL = inject("e2eDatabaseUrl");
   const { db } = await import("~/server/db.server.ts");
   const { asc, eq } = await import("drizzle-orm");
@@ -25,7 +25,7 @@ export async function createDemoBenchStudy(label: string): Promise<DemoBenchStud
     const { protocol } = await createProtocolTx(tx, { id: leadId }, lab.id, { template: "rope", name });
     const content = templateContent("rope", name);
     content.replicatesPerBlade = 1;
-    content.edgeForce = { ...content.edgeForce!, positions: ["heel", "tip"], checkEveryCuts: 1, capCuts: 4 };
+    content.edgeForce = { ...content.edgeForce!, positions: ["heel", "tip"], checkEveryCuts: 1, capCuts: options.cap ?? 4 };
     await saveDraftTx(tx, lab.id, protocol.id, 1, content);
     const version = await publishVersionTx(tx, { id: leadId }, lab.id, protocol.id, 1);
     const bladeRows = await tx.select({ id: schema.blades.id }).from(schema.blades).where(eq(schema.blades.labId, lab.id)).orderBy(asc(schema.blades.inventoryNumber)).limit(4);
@@ -34,7 +34,7 @@ export async function createDemoBenchStudy(label: string): Promise<DemoBenchStud
       .values({
         labId: lab.id,
         shortName,
-        question: "Do the bench screens work for everyone?",
+        question: options.question ?? "Do the bench screens work for everyone?",
         protocolVersionId: version.id,
         design: "parallel",
         analysisPlan: { alpha: 0.05, comparisons: "all_pairs", referenceArmId: null, tests: ["welch_t"] },
@@ -58,21 +58,20 @@ export async function createDemoBenchStudy(label: string): Promise<DemoBenchStud
   return { labId: lab.id, studyId, shortName, runIds: rows.map((r) => r.id), codes: new Map(rows.map((r) => [r.id, r.code!])) };
 }
 
+/** How many readings a run has stored. */
+export async function readingCount(runId: string) {
+  const { db } = await import("~/server/db.server.ts");
+  const { eq, sql } = await import("drizzle-orm");
+  const schema = await import("~/server/db/schema/index.ts");
+  return (await db().select({ n: sql<number>`count(*)::int` }).from(schema.readings).where(eq(schema.readings.runId, runId)))[0].n;
+}
+
 export async function closeDemoBenchDb() {
   const { closeDb } = await import("~/server/db.server.ts");
   await closeDb();
 }
 
-/** Signs in through the form, from a clean cookie jar. */
-export async function signInAs(page: Page, email: string, password = "blindcut-demo") {
-  await page.context().clearCookies();
-  await page.goto(`${inject("baseUrl")}/sign-in`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
-  await page.getByTestId("account-area").getByRole("button", { name: "Sign out" }).waitFor();
-}
+export { signInAs } from "./browser.ts";
 
 /** The tester starts a run through its setup form (code, ticks, lot, instrument, room). */
 export async function startRunAsTester(page: Page, code: string) {

@@ -1,14 +1,12 @@
-import { Form, Link, data, redirect } from "react-router";
+import { Form, Link } from "react-router";
+import { studyLifecycleAction } from "~/server/analysis/lifecycle-action.server.ts";
 import type { Route } from "./+types/study-results";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { ResultsCharts } from "~/components/results-charts.tsx";
 import { ResultsTables } from "~/components/results-tables.tsx";
-import { requireLabRole, isUuid, notFound } from "~/server/access.server.ts";
-import { closedAnalysis, requireStudySummaryForResults, studyOfLab } from "~/server/analysis/access.server.ts";
+import { closedAnalysis, requireStudySummaryForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
-import { closeStudy, LifecycleError, mailAnalysts } from "~/server/analysis/lifecycle.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
-import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Results · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -31,22 +29,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { ...base, closed: true as const, progress: null, view: resultsView(closedAnalysis(record), armNames(record)) };
 }
 
-export async function action({ request, params }: Route.ActionArgs) {
-  const { lab, user } = await requireLabRole(request, params.labId, ["owner", "lead"]);
-  if (!isUuid(params.studyId) || !(await studyOfLab(lab.id, params.studyId))) notFound();
-  const form = await readFormData(request);
-  if (form.get("intent") !== "close") return data({ error: "Unknown action" }, { status: 400 });
-  try {
-    const { study } = await closeStudy(user.id, lab.id, params.studyId);
-    await mailAnalysts(request, lab.id, params.studyId, study.shortName, "closed");
-    return redirect(`/labs/${lab.id}/studies/${params.studyId}/results`);
-  } catch (error) {
-    if (error instanceof LifecycleError) {
-      if (error.status === 404) notFound();
-      return data({ error: error.message }, { status: error.status });
-    }
-    throw error;
-  }
+export function action({ request, params }: Route.ActionArgs) {
+  return studyLifecycleAction(request, params, "close", (form) => form.get("intent") === "close", "Unknown action");
 }
 
 const STATE_LABELS = { draft: "□ Draft", randomized: "◇ Randomized", running: "▶ Running", closed: "■ Closed, blinded", unblinded: "◆ Unblinded" } as const;

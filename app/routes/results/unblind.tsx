@@ -1,37 +1,22 @@
-import { Form, Link, data, redirect } from "react-router";
+import { Form, Link } from "react-router";
+import { studyLifecycleAction } from "~/server/analysis/lifecycle-action.server.ts";
 import type { Route } from "./+types/unblind";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { requireLabRole, isUuid, notFound } from "~/server/access.server.ts";
-import { loadStudyRecord } from "~/server/analysis/study-data.server.ts";
 import { studyOfLab } from "~/server/analysis/access.server.ts";
-import { LifecycleError, mailAnalysts, unblindStudy } from "~/server/analysis/lifecycle.server.ts";
-import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Unblind the study · Blindcut" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, ["owner", "lead"]);
-  const record = isUuid(params.studyId) ? await loadStudyRecord(lab.id, params.studyId) : null;
-  if (!record) notFound();
-  return { lab, study: { id: record.study.id, shortName: record.study.shortName, state: record.study.state } };
+  // Only the name and state: the confirmation needs nothing of the study's data.
+  const study = isUuid(params.studyId) ? await studyOfLab(lab.id, params.studyId) : null;
+  if (!study) notFound();
+  return { lab, study };
 }
 
-export async function action({ request, params }: Route.ActionArgs) {
-  const { lab, user } = await requireLabRole(request, params.labId, ["owner", "lead"]);
-  if (!isUuid(params.studyId) || !(await studyOfLab(lab.id, params.studyId))) notFound();
-  const form = await readFormData(request);
-  if (form.get("confirm") !== "unblind") return data({ error: "Tick the box to confirm that you want to unblind the study." }, { status: 400 });
-  try {
-    const { study } = await unblindStudy(user.id, lab.id, params.studyId);
-    await mailAnalysts(request, lab.id, params.studyId, study.shortName, "unblinded");
-    return redirect(`/labs/${lab.id}/studies/${params.studyId}/results`);
-  } catch (error) {
-    if (error instanceof LifecycleError) {
-      if (error.status === 404) notFound();
-      return data({ error: error.message }, { status: error.status });
-    }
-    throw error;
-  }
+export function action({ request, params }: Route.ActionArgs) {
+  return studyLifecycleAction(request, params, "unblind", (form) => form.get("confirm") === "unblind", "Tick the box to confirm that you want to unblind the study.");
 }
 
 export default function Unblind({ loaderData, actionData }: Route.ComponentProps) {

@@ -30,9 +30,9 @@ export async function requireStudySummaryForResults(request: Request, labId: str
   return { ...access, record };
 }
 
-/** The study's id and state when it belongs to the lab, else null. */
+/** The study's id, short name and state when it belongs to the lab, else null. */
 export async function studyOfLab(labId: string, studyId: string) {
-  const [row] = await db().select({ id: studies.id, state: studies.state }).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
+  const [row] = await db().select({ id: studies.id, shortName: studies.shortName, state: studies.state }).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
   return row ?? null;
 }
 
