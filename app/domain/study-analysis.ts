@@ -73,7 +73,9 @@ export type StudyAnalysis = {
   runs: RunResult[];
   parallel: ParallelAnalysis | null;
   withinBlade: { pairs: (WithinBladeAnalysis & { pPairedHolm: number | null })[] } | null;
-  armCurves: { armKey: string; points: { cut: number; mean: number; n: number }[] }[];
+  /** Arm mean curves, drawn only while at least half of the arm's runs are still going (ARM_CURVE_RULE). */
+  armCurves: { armKey: string; nRuns: number; points: { cut: number; mean: number; n: number }[] }[];
+  armCurveRule?: string;
   flow: { enrolledBlades: number; runs: number; analysed: number; endedAtThreshold: number; censored: number; withdrawn: { runId: string; bladeKey: string; reason: string }[]; excluded: { runId: string; reason: string }[] };
   warnings: string[];
   error: string | null;
@@ -122,14 +124,24 @@ export function runResults(input: StudyAnalysisInput): RunResult[] {
   });
 }
 
-function armCurves(runs: RunResult[], armKeys: string[]) {
+/** Why the arm curve stops: past that point its mean would average only the longest-lasting runs. */
+export const ARM_CURVE_RULE = "the arm's mean curve is drawn only at cuts where at least half of the arm's runs are still going (n at each point)";
+
+/**
+ * Mean aggregate per cut over the arm's runs still going at that cut, kept only while
+ * n >= half of the arm's runs with a curve (survivor bias otherwise).
+ */
+export function armCurves(runs: readonly Pick<RunResult, "armKey" | "curve">[], armKeys: readonly string[]) {
+  if (!Array.isArray(runs) || !Array.isArray(armKeys)) throw new Error("armCurves needs the runs and the arm keys");
   return armKeys.map((armKey) => {
+    const armRuns = runs.filter((r) => r.armKey === armKey && r.curve.length > 0);
     const byCut = new Map<number, number[]>();
-    for (const r of runs) if (r.armKey === armKey) for (const p of r.curve) byCut.set(p.cut, [...(byCut.get(p.cut) ?? []), p.aggregate]);
+    for (const r of armRuns) for (const p of r.curve) byCut.set(p.cut, [...(byCut.get(p.cut) ?? []), p.aggregate]);
     const points = [...byCut]
       .sort((a, b) => a[0] - b[0])
+      .filter(([, values]) => 2 * values.length >= armRuns.length)
       .map(([cut, values]) => ({ cut, mean: values.reduce((s, v) => s + v, 0) / values.length, n: values.length }));
-    return { armKey, points };
+    return { armKey, nRuns: armRuns.length, points };
   });
 }
 
@@ -160,6 +172,7 @@ export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
         mode: input.comparisons === "vs_reference" ? "vs-reference" : "all-pairs",
         reference: input.comparisons === "vs_reference" ? (input.referenceArmKey ?? undefined) : undefined,
         survival: input.primaryOutcome === "cuts_to_threshold",
+        tau: input.primaryOutcome === "cuts_to_threshold" && input.forceProtocol ? input.forceProtocol.cap : undefined,
       });
       // Arms in label order, so Arm A comes first everywhere.
       parallel.arms.sort((a, b) => a.arm.localeCompare(b.arm));
@@ -193,6 +206,7 @@ export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
     parallel,
     withinBlade,
     armCurves: armCurves(runs, [...input.armKeys].sort()),
+    armCurveRule: ARM_CURVE_RULE,
     flow: {
       enrolledBlades: new Set(input.runs.map((r) => r.bladeKey)).size,
       runs: runs.length,

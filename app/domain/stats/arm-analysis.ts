@@ -11,6 +11,7 @@ import { logRank, type LogRankResult } from "./log-rank.ts";
 import { pairedT, type PairedTResult } from "./paired-t.ts";
 import { wilcoxonSignedRank, type WilcoxonSignedRankResult, type ZeroMethod } from "./wilcoxon-signed-rank.ts";
 import { dz, type DzResult } from "./effect-size.ts";
+import { rmst, rmstDifference, type RmstDifference, type RmstResult } from "./rmst.ts";
 
 /** One run's outcome, as the arm analysis needs it. */
 export interface RunOutcomeRecord {
@@ -43,8 +44,10 @@ export interface ArmSummary {
   nCensoredRuns: number;
   /** Share of the arm's runs censored at the cap (0..1). */
   censoredShare: number;
-  /** true when any run in the arm is censored: the mean, interval and tests are then lower bounds. */
+  /** true when any run in the arm is censored: the arm's mean is then a lower bound of its mean. */
   lowerBound: boolean;
+  /** Distinct resamples the percentile bootstrap can draw from nBlades blade means (null above 1e15). */
+  bootstrapDistinctResamples: number | null;
   /** Blade means (replicates averaged), by blade id. */
   bladeMeans: { bladeId: string; mean: number; nRuns: number; nCensored: number }[];
   descriptives: Descriptives;
@@ -60,6 +63,8 @@ export interface ParallelAnalysis {
   nBlades: number;
   nRuns: number;
   comparisons: Maybe<PairwiseResult> | null;
+  /** One censoring warning per comparison (a, b) when either arm has censored runs. */
+  comparisonWarnings: { a: string; b: string; warning: string }[];
   survival: SurvivalAnalysis | null;
   warnings: string[];
 }
@@ -70,11 +75,53 @@ export interface SurvivalAnalysis {
   note: string;
   curves: { arm: string; km: KaplanMeierResult }[];
   logRank: Maybe<LogRankResult> | null;
+  /** false when blades have replicates: runs of one blade are not independent, so the p-value is not valid for inference. */
+  logRankValidForInference: boolean;
+  /** Restricted mean survival time up to tau per arm, and between-arm differences (present when tau is given). */
+  rmst: { tau: number; arms: { arm: string; result: Maybe<RmstResult> }[]; differences: Maybe<RmstDifference>[] } | null;
 }
 
-function censorWarning(label: string, nCens: number, nRuns: number): string {
-  const pct = Math.round((1000 * nCens) / nRuns) / 10;
-  return `${label}: ${nCens} of ${nRuns} runs (${pct}%) are censored at the cap; they enter at the cap, so the mean, its intervals and the tests are lower bounds`;
+function pct(share: number): string {
+  return `${Math.round(1000 * share) / 10}%`;
+}
+
+/** The warning on an arm row: its mean with censored runs is a lower bound of that arm's mean. */
+export function armCensorWarning(arm: string, nCens: number, nRuns: number): string {
+  checkCounts(nCens, nRuns, "armCensorWarning");
+  return `${arm}: ${nCens} of ${nRuns} runs (${pct(nCens / nRuns)}) are censored at the cap and enter at the cap, so this arm's mean is a lower bound of its true mean`;
+}
+
+/**
+ * The warning on every difference, interval, p-value and effect size computed from capped
+ * values: capping two arms can bias their difference either way, and it squeezes the
+ * spread, which inflates a standardized effect size.
+ */
+export function comparisonCensorWarning(arms: readonly { arm: string; nCensored: number; nRuns: number }[]): string {
+  if (!Array.isArray(arms) || arms.length < 2) throw new Error("comparisonCensorWarning needs at least two arms");
+  for (const a of arms) checkCounts(a.nCensored, a.nRuns, "comparisonCensorWarning");
+  const shares = arms.map((a) => `${a.arm} ${a.nCensored} of ${a.nRuns} runs (${pct(a.nCensored / a.nRuns)})`).join(", ");
+  return `Censored at the cap: ${shares}. The difference, its interval, the p-values and the effect size use capped values: the bias can go either way, and the effect size is inflated because capping squeezes the spread. Read the restricted mean (RMST) beside it.`;
+}
+
+function checkCounts(nCens: number, nRuns: number, fn: string): void {
+  if (!Number.isInteger(nRuns) || nRuns < 1) throw new Error(`${fn}: the number of runs must be a whole number >= 1, got ${String(nRuns)}`);
+  if (!Number.isInteger(nCens) || nCens < 0 || nCens > nRuns) throw new Error(`${fn}: censored runs must be a whole number between 0 and ${nRuns}, got ${String(nCens)}`);
+}
+
+/**
+ * Number of distinct resamples (multisets) of size n drawn with replacement from n values:
+ * C(2n - 1, n) (Efron & Tibshirani 1993, ch. 6 problem; e.g. 4 blades: 35).
+ * @returns the count, or null when it exceeds 1e15
+ * @throws Error when n is not a whole number >= 1
+ */
+export function distinctBootstrapResamples(n: number): number | null {
+  if (!Number.isInteger(n) || n < 1) throw new Error(`distinctBootstrapResamples: n must be a whole number >= 1, got ${String(n)}`);
+  let c = 1;
+  for (let k = 1; k <= n; k++) {
+    c = (c * (n - 1 + k)) / k;
+    if (c > 1e15) return null;
+  }
+  return Math.round(c);
 }
 
 function checkRecords(runs: readonly RunOutcomeRecord[], fn: string): void {
@@ -112,6 +159,8 @@ export function analyzeParallelArms(
     mode?: "all-pairs" | "vs-reference";
     reference?: string;
     survival?: boolean;
+    /** Restriction time of the RMST (e.g. the cap); without it no RMST is computed. */
+    tau?: number;
   },
 ): ParallelAnalysis {
   checkRecords(runs, "analyzeParallelArms");
@@ -144,7 +193,11 @@ export function analyzeParallelArms(
     const nRuns = bladeMeans.reduce((s, b) => s + b.nRuns, 0);
     const nCens = bladeMeans.reduce((s, b) => s + b.nCensored, 0);
     const armWarnings: string[] = [];
-    if (nCens > 0) armWarnings.push(censorWarning(arm, nCens, nRuns));
+    if (nCens > 0) armWarnings.push(armCensorWarning(arm, nCens, nRuns));
+    const distinct = distinctBootstrapResamples(bladeMeans.length);
+    if (bladeMeans.length < 10) {
+      armWarnings.push(`${arm}: with ${bladeMeans.length} blades the percentile bootstrap has only ${distinct} distinct resamples; under 10 blades per arm its interval is coarse and too narrow`);
+    }
     const ti = attempt(() => tInterval(values, { level }));
     const bs = attempt(() => bootstrapInterval(values, { seed: `${options.seed}/${arm}`, resamples: options.resamples, level }));
     if (ti.error) armWarnings.push(`${arm}: no t-interval (${ti.error})`);
@@ -152,7 +205,7 @@ export function analyzeParallelArms(
     warnings.push(...armWarnings);
     arms.push({
       arm, nBlades: bladeMeans.length, nRuns, nCensoredRuns: nCens, censoredShare: nCens / nRuns, lowerBound: nCens > 0,
-      bladeMeans, descriptives: describe(values), tInterval: ti, bootstrap: bs, warnings: armWarnings,
+      bootstrapDistinctResamples: distinct, bladeMeans, descriptives: describe(values), tInterval: ti, bootstrap: bs, warnings: armWarnings,
     });
   }
   let comparisons: Maybe<PairwiseResult> | null = null;
@@ -164,8 +217,16 @@ export function analyzeParallelArms(
     );
     if (comparisons.error) warnings.push(`no comparisons (${comparisons.error})`);
   }
-  const survival = options.survival === false ? null : survivalByArm(runs, { level });
-  return { unit: "blade (replicates averaged)", arms, nBlades: armOfBlade.size, nRuns: runs.length, comparisons, survival, warnings };
+  const comparisonWarnings: ParallelAnalysis["comparisonWarnings"] = [];
+  for (const c of comparisons?.value?.comparisons ?? []) {
+    const pair = arms.filter((a) => a.arm === c.a || a.arm === c.b);
+    if (pair.some((a) => a.nCensoredRuns > 0)) {
+      const ordered = [c.a, c.b].map((k) => pair.find((a) => a.arm === k)!);
+      comparisonWarnings.push({ a: c.a, b: c.b, warning: comparisonCensorWarning(ordered.map((a) => ({ arm: a.arm, nCensored: a.nCensoredRuns, nRuns: a.nRuns }))) });
+    }
+  }
+  const survival = options.survival === false ? null : survivalByArm(runs, { level, tau: options.tau, pairs: comparisons?.value?.comparisons.map((c) => [c.a, c.b] as [string, string]) });
+  return { unit: "blade (replicates averaged)", arms, nBlades: armOfBlade.size, nRuns: runs.length, comparisons, comparisonWarnings, survival, warnings };
 }
 
 /**
@@ -173,8 +234,14 @@ export function analyzeParallelArms(
  * (time = the outcome, event = not censored).
  * @throws Error on invalid records
  */
-export function survivalByArm(runs: readonly RunOutcomeRecord[], options: { level?: number } = {}): SurvivalAnalysis {
+export function survivalByArm(
+  runs: readonly RunOutcomeRecord[],
+  options: { level?: number; tau?: number; pairs?: [string, string][] } = {},
+): SurvivalAnalysis {
   checkRecords(runs, "survivalByArm");
+  if (options.tau !== undefined && !(typeof options.tau === "number" && Number.isFinite(options.tau) && options.tau > 0)) {
+    throw new Error(`survivalByArm: tau must be a finite number > 0, got ${String(options.tau)}`);
+  }
   const groups = new Map<string, { time: number; event: boolean }[]>();
   for (const r of runs) {
     let g = groups.get(r.arm);
@@ -182,10 +249,27 @@ export function survivalByArm(runs: readonly RunOutcomeRecord[], options: { leve
     g.push({ time: r.value, event: !r.censored });
   }
   const curves = [...groups].map(([arm, obs]) => ({ arm, km: kaplanMeier(obs, { level: options.level }) }));
-  const bladesPerArm = new Set(runs.map((r) => r.bladeId)).size;
-  const note = bladesPerArm === runs.length
+  const nBlades = new Set(runs.map((r) => r.bladeId)).size;
+  const onePerBlade = nBlades === runs.length;
+  const note = onePerBlade
     ? "runs are the units; with one replicate per blade, runs and blades coincide"
-    : "runs are the units; replicates of one blade are not independent, so the log-rank p-value and the bands are too optimistic";
+    : "runs are the units; replicates of one blade are not independent, so the log-rank p-value is not valid for inference and the bands are too narrow";
+  let rmstPart: SurvivalAnalysis["rmst"] = null;
+  if (options.tau !== undefined) {
+    const tau = options.tau;
+    const arms = [...groups].map(([arm, obs]) => ({ arm, result: attempt(() => rmst(obs, { tau, level: options.level })) }));
+    const keys = arms.map((a) => a.arm).sort((x, y) => x.localeCompare(y));
+    const pairs = options.pairs ?? keys.flatMap((x, i) => keys.slice(i + 1).map((y) => [x, y] as [string, string]));
+    const differences = pairs.map(([x, y]) =>
+      attempt(() => {
+        const ax = arms.find((a) => a.arm === x)?.result.value;
+        const ay = arms.find((a) => a.arm === y)?.result.value;
+        if (!ax || !ay) throw new Error(`no RMST for ${!ax ? x : y}`);
+        return rmstDifference({ arm: x, result: ax }, { arm: y, result: ay });
+      }),
+    );
+    rmstPart = { tau, arms, differences };
+  }
   return {
     unit: "run",
     note,
@@ -193,6 +277,8 @@ export function survivalByArm(runs: readonly RunOutcomeRecord[], options: { leve
     logRank: groups.size >= 2
       ? attempt(() => logRank([...groups].map(([group, observations]) => ({ group, observations }))))
       : null,
+    logRankValidForInference: onePerBlade,
+    rmst: rmstPart,
   };
 }
 
@@ -207,6 +293,8 @@ export interface WithinBladeAnalysis {
   nCensoredRuns: number;
   censoredShare: number;
   lowerBound: boolean;
+  /** The censoring warning of the paired results, or null when no run is censored. */
+  censorWarning: string | null;
   descriptives: Descriptives;
   pairedT: Maybe<PairedTResult>;
   wilcoxon: Maybe<WilcoxonSignedRankResult>;
@@ -260,7 +348,9 @@ export function analyzeWithinBlade(
   if (incomplete.length > 0) warnings.push(`${incomplete.length} blade(s) lack one condition and are left out: ${incomplete.join(", ")}`);
   if (differences.length < 2) throw new Error(`analyzeWithinBlade requires at least 2 blades with both conditions, got ${differences.length}`);
   const nCens = used.filter((r) => r.censored).length;
-  if (nCens > 0) warnings.push(censorWarning("within-blade", nCens, used.length));
+  const byCondition = [c1, c2].map((c) => ({ arm: c, nCensored: used.filter((r) => r.arm === c && r.censored).length, nRuns: used.filter((r) => r.arm === c).length }));
+  const censorWarning = nCens > 0 ? comparisonCensorWarning(byCondition) : null;
+  if (censorWarning) warnings.push(censorWarning);
   const x = differences.map((d) => d.first);
   const y = differences.map((d) => d.second);
   const level = options.level ?? 0.95;
@@ -279,6 +369,7 @@ export function analyzeWithinBlade(
     nCensoredRuns: nCens,
     censoredShare: nCens / used.length,
     lowerBound: nCens > 0,
+    censorWarning,
     descriptives: describe(differences.map((d) => d.difference)),
     pairedT: pt, wilcoxon: wx, dz: dd, warnings,
   };

@@ -21,3 +21,4 @@ export * from "./log-rank.ts";
 export * from "./noncentral-t.ts";
 export * from "./power.ts";
 export * from "./arm-analysis.ts";
+export * from "./rmst.ts";

@@ -27,8 +27,9 @@ export interface KaplanMeierStep {
   survival: number;
   /** Greenwood standard error of the survival estimate. */
   se: number;
-  lower: number;
-  upper: number;
+  /** Band limits; null where S = 0 (the band is undefined there). */
+  lower: number | null;
+  upper: number | null;
 }
 
 /** Result of kaplanMeier(). */
@@ -54,7 +55,14 @@ export interface KaplanMeierMedian {
   upper: number | null;
   reached: boolean;
   intervalMethod: "Brookmeyer-Crowley (inverted pointwise band)";
+  /** How the median is read off the step curve. */
+  rule: string;
 }
+
+/** Tolerance for comparing S with 0.5, as R's survival package: sqrt(machine epsilon). */
+export const KM_MEDIAN_TOLERANCE = Math.sqrt(Number.EPSILON);
+export const KM_MEDIAN_RULE =
+  "the first time S(t) < 0.5 + sqrt(machine epsilon); when S stays at 0.5 (within that tolerance) over an interval, the midpoint between that time and the next drop, as R's survival package; the interval limits follow the same rule on the band, and a band limit that is undefined (S = 0) never counts as reached";
 
 /**
  * Kaplan & Meier (1958), JASA 53:457-481: S(t) = prod_{t_j <= t} (1 - d_j / n_j) over
@@ -62,7 +70,8 @@ export interface KaplanMeierMedian {
  * Var S(t) = S(t)^2 sum_{t_j <= t} d_j / (n_j (n_j - d_j)). Pointwise band at `level`
  * on the log(-log S) scale by default (Kalbfleisch & Prentice 2002, sec. 1.4), or on
  * the log or plain scale; the band is pointwise, not simultaneous. Median = the
- * smallest time with S(t) <= 0.5; its interval, after Brookmeyer & Crowley (1982),
+ * smallest time with S(t) < 0.5 + sqrt(eps), with R's midpoint rule where S stays at 0.5
+ * (KM_MEDIAN_RULE); its interval, after Brookmeyer & Crowley (1982),
  * Biometrics 38:29-41, runs from the first time the band's lower limit is <= 0.5 to the
  * first time its upper limit is <= 0.5 (null when the band never gets there).
  * @param observations at least one, each with finite time >= 0 and boolean event
@@ -125,8 +134,9 @@ export function kaplanMeier(
   };
 }
 
-function band(s: number, gw: number, z: number, transform: BandTransform): [number, number] {
-  if (s <= 0) return [0, 0];
+function band(s: number, gw: number, z: number, transform: BandTransform): [number | null, number | null] {
+  // At S = 0 Greenwood's variance and every transform of it are undefined: no limit.
+  if (s <= 0) return [null, null];
   const seLog = Math.sqrt(gw); // SE of log S
   if (seLog === 0) return [s, s];
   if (transform === "plain") {
@@ -142,17 +152,33 @@ function band(s: number, gw: number, z: number, transform: BandTransform): [numb
   return [Math.exp(-Math.exp(theta + z * seTheta)), Math.exp(-Math.exp(theta - z * seTheta))];
 }
 
+/**
+ * R's survival package (survmean's minmin): keep the steps with y < 0.5 + tol; the first is
+ * the median unless it sits at 0.5 within tol and a later step is lower, in which case the
+ * midpoint of its time and the first lower step's time. Null values (undefined band) are skipped.
+ */
+function halfCrossing(steps: readonly KaplanMeierStep[], y: (st: KaplanMeierStep) => number | null): number | null {
+  const kept = steps.filter((st) => {
+    const v = y(st);
+    return v !== null && v < 0.5 + KM_MEDIAN_TOLERANCE;
+  });
+  if (kept.length === 0) return null;
+  const y0 = y(kept[0])!;
+  if (Math.abs(y0 - 0.5) < KM_MEDIAN_TOLERANCE) {
+    const lower = kept.find((st) => y(st)! < y0);
+    if (lower) return (kept[0].time + lower.time) / 2;
+  }
+  return kept[0].time;
+}
+
 function kmMedian(steps: readonly KaplanMeierStep[]): KaplanMeierMedian {
-  const first = (pred: (st: KaplanMeierStep) => boolean): number | null => {
-    const st = steps.find(pred);
-    return st ? st.time : null;
-  };
-  const estimate = first((st) => st.survival <= 0.5);
+  const estimate = halfCrossing(steps, (st) => st.survival);
   return {
     estimate,
-    lower: first((st) => st.lower <= 0.5),
-    upper: first((st) => st.upper <= 0.5),
+    lower: halfCrossing(steps, (st) => st.lower),
+    upper: halfCrossing(steps, (st) => st.upper),
     reached: estimate !== null,
     intervalMethod: "Brookmeyer-Crowley (inverted pointwise band)",
+    rule: KM_MEDIAN_RULE,
   };
 }

@@ -76,7 +76,9 @@ suite("within-blade differences", () => {
     expect(r.descriptives.sd).toBeCloseTo(ss.sampleStandardDeviation([40, 20, 40, 25]), 12);
     expect(r.nBlades).toBe(4);
     expect(r.warnings.join(" ")).toMatch(/lack one condition.*b5/);
-    expect(r.warnings.join(" ")).toMatch(/1 of 10 runs \(10%\) are censored/);
+    // Hand count: coarse has 5 runs in the complete blades, 1 censored; polished 5, none.
+    expect(r.warnings.join(" ")).toMatch(/coarse 1 of 5 runs \(20%\), polished 0 of 5 runs \(0%\)/);
+    expect(r.censoredShare).toBeCloseTo(0.1, 12);
     expect(r.pairedT.value!.t).toBeCloseTo(pairedT([150, 100, 170, 115], [110, 80, 130, 90]).t, 12);
     expect(r.wilcoxon.value!.pMethod).toBe("normal approximation with continuity and tie correction"); // 40 appears twice
     expect(r.dz.value!.dz).toBeGreaterThan(0);

@@ -41,10 +41,10 @@ suite("Kaplan-Meier", () => {
     const seLog = Math.sqrt(3 / (21 * 18)); // Greenwood, hand computation
     const th = Math.log(-Math.log(s));
     const k = seLog / Math.abs(Math.log(s));
-    expectRel(at(6).lower, Math.exp(-Math.exp(th + 1.959964 * k)), 1e-5);
-    expectRel(at(6).upper, Math.exp(-Math.exp(th - 1.959964 * k)), 1e-5);
+    expectRel(at(6).lower!, Math.exp(-Math.exp(th + 1.959964 * k)), 1e-5);
+    expectRel(at(6).upper!, Math.exp(-Math.exp(th - 1.959964 * k)), 1e-5);
     const plain = kaplanMeier(sixMP, { transform: "plain" }).steps[0];
-    expectRel(plain.lower, s - 1.959964 * s * seLog, 1e-5);
+    expectRel(plain.lower!, s - 1.959964 * s * seLog, 1e-5);
   });
   it("without censoring the curve is the empirical survival function", () => {
     const r = kaplanMeier([{ time: 3, event: true }, { time: 5, event: true }, { time: 5, event: true }, { time: 9, event: true }]);
