@@ -2,9 +2,15 @@
  * A seeded simulator of cut-test readings, for demo data, tests and the benchmark.
  * Every result is marked `invented: true`: simulated readings are never results.
  *
- * Edge force: the run's mean curve is f(n) = b + r·n + c·n² gf after n cuts, where
- * the run's baseline b and loss rate r are drawn around the arm's values (normal,
- * by Box–Muller), c is the arm's curvature; each reading adds the position's effect
+ * Edge force: the run's mean curve is f(n) = b + r·g(n) + c·n² gf after n cuts, where
+ * g(n) = s·ln(1 + n/s) when the arm has a dulling scale s (the edge dulls fast at
+ * first, then slower) and g(n) = n otherwise; the curve is held at its running
+ * maximum, so it never falls. A blade effect (drawn once per blade from the blade's
+ * seed, so the replicates of one blade are correlated) multiplies the arm's baseline
+ * and loss rate by lognormal factors with the arm's between-blade coefficient of
+ * variation; the run's own baseline and rate are then drawn around the blade's
+ * (normal, by Box–Muller). Now and then a chip or rolled edge adds a lasting jump to
+ * the force. Each reading adds the position's effect
  * (heel, middle, tip, ...) and normal noise, is kept at or above 1 gf and rounded to
  * the instrument's resolution. A simple copy of the stop rule (product.md, Analysis)
  * decides when the run ends; the official rule lives in outcomes.ts.
@@ -37,6 +43,40 @@ export interface EdgeForceModel {
   noiseSdGf: number;
   /** Additive effect of each reading position, gf (e.g. { heel: 15, middle: 0, tip: -10 }); missing positions 0. */
   positionEffectsGf?: Record<string, number>;
+  /**
+   * Between-blade coefficient of variation of the baseline and the loss rate (0..1, default 0).
+   * Common practice: 15–30 % between blades of one batch.
+   */
+  bladeCv?: number;
+  /** Dulling scale s, cuts: the curve rises as s·ln(1 + n/s), fast then slower (default: linear). */
+  dullingScaleCuts?: number;
+  /** Chance per check interval that a chip or rolled edge happens (0..1, default 0). */
+  chipChancePerCheck?: number;
+  /** The lasting rise of the force after a chip or rolled edge, gf (default 60). */
+  chipJumpGf?: number;
+}
+
+/** A blade's own multipliers of the arm's baseline and loss rate (shared by its replicates). */
+export interface BladeEffect {
+  baselineFactor: number;
+  lossRateFactor: number;
+}
+
+/**
+ * Draws a blade's effect from its seed: lognormal factors with mean 1 and coefficient of
+ * variation cv, sigma = sqrt(ln(1 + cv^2)), so every replicate of the blade shares them.
+ * @param bladeSeed the blade's seed (e.g. the study's demo seed plus the blade code)
+ * @param cv between-blade coefficient of variation, 0..1
+ * @throws Error on an empty seed or cv outside [0, 1]
+ */
+export function drawBladeEffect(bladeSeed: string, cv: number): BladeEffect {
+  if (typeof bladeSeed !== "string" || bladeSeed === "") throw new Error("simulator: a blade effect needs the blade's seed");
+  if (typeof cv !== "number" || !Number.isFinite(cv) || cv < 0 || cv > 1) throw new Error(`simulator: bladeCv must be between 0 and 1, got ${String(cv)}`);
+  if (cv === 0) return { baselineFactor: 1, lossRateFactor: 1 };
+  const source = createRandomSource(bladeSeed, "simulator-blade");
+  const sigma = Math.sqrt(Math.log(1 + cv * cv));
+  const factor = () => Math.exp(sigma * normal(source) - (sigma * sigma) / 2);
+  return { baselineFactor: factor(), lossRateFactor: factor() };
 }
 
 /** The protocol settings the simulator follows. */
@@ -78,6 +118,8 @@ export interface SimulatedEdgeForceRun {
   end: "threshold" | "censored" | "failed-baseline";
   /** The cut of the last check. */
   lastCut: number;
+  /** Cuts after which a chip or rolled edge happened. */
+  chips: number[];
 }
 
 function normal(source: RandomSource): number {
@@ -126,6 +168,8 @@ export function simulateEdgeForceRun(options: {
   seed: string;
   model: EdgeForceModel;
   protocol: SimulationProtocol;
+  /** The blade's seed: replicates of one blade share its effect (needed when the model has a bladeCv). */
+  bladeSeed?: string;
 }): SimulatedEdgeForceRun {
   const { seed, model, protocol } = options;
   const checkEvery = whole(protocol.checkEvery, "checkEvery", 1);
@@ -146,11 +190,24 @@ export function simulateEdgeForceRun(options: {
   finite(model.noiseSdGf, "noiseSdGf", 0);
   const effects = model.positionEffectsGf ?? {};
   for (const [position, effect] of Object.entries(effects)) finite(effect, `the effect of position "${position}"`);
+  const bladeCv = finite(model.bladeCv ?? 0, "bladeCv", 0);
+  if (bladeCv > 1) throw new Error(`simulator: bladeCv must be between 0 and 1, got ${bladeCv}`);
+  if (bladeCv > 0 && !options.bladeSeed) throw new Error("simulator: a model with a bladeCv needs the blade's seed (bladeSeed)");
+  const scale = model.dullingScaleCuts === undefined ? null : finite(model.dullingScaleCuts, "dullingScaleCuts", Number.MIN_VALUE);
+  const chipChance = finite(model.chipChancePerCheck ?? 0, "chipChancePerCheck", 0);
+  if (chipChance > 1) throw new Error(`simulator: chipChancePerCheck must be between 0 and 1, got ${chipChance}`);
+  const chipJump = finite(model.chipJumpGf ?? 60, "chipJumpGf", 0);
 
+  const blade = options.bladeSeed ? drawBladeEffect(options.bladeSeed, bladeCv) : { baselineFactor: 1, lossRateFactor: 1 };
   const source = createRandomSource(seed, "simulator-edge-force");
-  const baseline = Math.max(1, model.baselineMeanGf + model.baselineSdGf * normal(source));
-  const rate = model.lossRatePerCut + (model.lossRateSd ?? 0) * normal(source);
-  const curve = (n: number) => baseline + rate * n + model.curvature * n * n;
+  const baseline = Math.max(1, model.baselineMeanGf * blade.baselineFactor + model.baselineSdGf * normal(source));
+  const rate = Math.max(0, model.lossRatePerCut * blade.lossRateFactor + (model.lossRateSd ?? 0) * normal(source));
+  const shape = (n: number) => (scale === null ? n : scale * Math.log1p(n / scale));
+  let jump = 0;
+  let peak = -Infinity;
+  const chips: number[] = [];
+  // Held at its running maximum: an edge never gets sharper by cutting.
+  const curve = (n: number) => (peak = Math.max(peak, baseline + rate * shape(n) + model.curvature * n * n + jump));
   const read = (n: number, effect: number) => {
     const raw = Math.max(1, curve(n) + effect + model.noiseSdGf * normal(source));
     return Math.max(resolution, Math.round(raw / resolution) * resolution);
@@ -169,18 +226,24 @@ export function simulateEdgeForceRun(options: {
     return aggregateGf;
   };
 
-  if (check(0) >= threshold) return { invented: true, seed, readings, checks, end: "failed-baseline", lastCut: 0 };
+  if (check(0) >= threshold) return { invented: true, seed, readings, checks, end: "failed-baseline", lastCut: 0, chips };
   let cut = 0;
   while (cut < cap) {
+    const previous = cut;
     cut = Math.min(cut + checkEvery, cap);
+    // Drawn only when the model has chips, so models without them keep their random stream.
+    if (chipChance > 0 && randomUnit(source) < chipChance) {
+      jump += chipJump;
+      chips.push(previous + 1);
+    }
     if (check(cut) >= threshold) {
-      if (!protocol.confirmation) return { invented: true, seed, readings, checks, end: "threshold", lastCut: cut };
+      if (!protocol.confirmation) return { invented: true, seed, readings, checks, end: "threshold", lastCut: cut, chips };
       const valueGf = read(cut, 0);
       readings.push({ cut, position: "fresh spot", kind: "confirmation", valueGf });
-      if (valueGf >= threshold) return { invented: true, seed, readings, checks, end: "threshold", lastCut: cut };
+      if (valueGf >= threshold) return { invented: true, seed, readings, checks, end: "threshold", lastCut: cut, chips };
     }
   }
-  return { invented: true, seed, readings, checks, end: "censored", lastCut: cut };
+  return { invented: true, seed, readings, checks, end: "censored", lastCut: cut, chips };
 }
 
 /** The model of one arm for card-depth runs; depths in mm. */

@@ -12,13 +12,15 @@ import { readingContentHash } from "~/domain/reading-hash.ts";
  */
 export async function recordSimulatedRun(
   tx: Transaction,
-  options: { labId: string; runId: string; testerId: string; protocol: ForceProtocol; model: EdgeForceModel; seed: string; startAt: Date },
+  options: { labId: string; runId: string; testerId: string; protocol: ForceProtocol; model: EdgeForceModel; seed: string; startAt: Date; bladeSeed?: string },
 ) {
   const { protocol } = options;
   let at = options.startAt.getTime();
   for (let attempt = 1; attempt <= 3; attempt++) {
     const sim = simulateEdgeForceRun({
       seed: `${options.seed}/attempt-${attempt}`,
+      // The blade's effect is the same on every attempt and replicate of that blade.
+      bladeSeed: options.bladeSeed,
       model: options.model,
       protocol: { checkEvery: protocol.checkEvery, cap: protocol.cap, positions: [...protocol.positions], thresholdGf: protocol.threshold, confirmation: protocol.confirm, aggregation: protocol.aggregation },
     });

@@ -4,7 +4,7 @@
 // (closed, still blind), a running study with runs waiting for the demo tester, and a draft.
 import { and, asc, eq } from "drizzle-orm";
 import type { Transaction } from "../db.server.ts";
-import { protocolVersions, runs, studies, studyArms, studyBlades, studyTesters } from "../db/schema/index.ts";
+import { blades, protocolVersions, runs, studies, studyArms, studyBlades, studyTesters } from "../db/schema/index.ts";
 import { randomizeStudyTx, startStudyTx } from "../studies/randomize.server.ts";
 import { closeStudyTx, unblindStudyTx } from "../analysis/lifecycle.server.ts";
 import { recordSimulatedRun } from "../simulated-runs.server.ts";
@@ -69,22 +69,33 @@ async function createStudy(
 async function simulateRuns(tx: Transaction, labId: string, studyId: string, content: ProtocolContent, models: Map<string, EdgeForceModel>, seed: string, limit = Infinity) {
   const protocol = toForceProtocol(content)!;
   const rows = await tx.select().from(runs).where(eq(runs.studyId, studyId)).orderBy(asc(runs.schedulePosition));
+  // The blade's inventory number seeds its effect, so its replicates (and both conditions of a within-blade study) share it.
+  const inventory = new Map(
+    (await tx.select({ id: studyBlades.id, inv: blades.inventoryNumber }).from(studyBlades).innerJoin(blades, eq(blades.id, studyBlades.bladeId)).where(eq(studyBlades.studyId, studyId))).map((b) => [b.id, b.inv]),
+  );
   let start = Date.now() - 30 * 86_400_000;
   let done = 0;
   for (const run of rows) {
     if (done >= limit) break;
-    await recordSimulatedRun(tx, { labId, runId: run.id, testerId: run.testerId, protocol, model: models.get(run.armId)!, seed: `${seed}/run-${run.schedulePosition}`, startAt: new Date(start) });
+    await recordSimulatedRun(tx, { labId, runId: run.id, testerId: run.testerId, protocol, model: models.get(run.armId)!, seed: `${seed}/run-${run.schedulePosition}`, bladeSeed: `${seed}/blade-${inventory.get(run.studyBladeId)}`, startAt: new Date(start) });
     start += 3 * 3600_000;
     done++;
   }
 }
 
+// Invented demo models. Between-blade variation 20 % (common practice: 15-30 % between blades
+// of one batch), a smaller run-to-run spread within a blade, an edge that dulls fast then
+// slower over about 30 cuts, and a chip or rolled edge now and then.
 const model = (baseline: number, loss: number): EdgeForceModel => ({
   baselineMeanGf: baseline,
-  baselineSdGf: 12,
+  baselineSdGf: 8,
   lossRatePerCut: loss,
-  lossRateSd: loss * 0.12,
+  lossRateSd: loss * 0.06,
   curvature: 0,
+  dullingScaleCuts: 30,
+  bladeCv: 0.2,
+  chipChancePerCheck: 0.004,
+  chipJumpGf: 60,
   noiseSdGf: 14,
   positionEffectsGf: { heel: 8, middle: 0, tip: -6 },
 });
@@ -109,7 +120,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, temper.study.id, "demo-temper-t1");
   await startStudyTx(tx, people.leadId, labId, temper.study.id);
-  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 4.4)], [temper.arms[1].id, model(150, 5.6)]]), "demo-temper-t1/sim");
+  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 7.0)], [temper.arms[1].id, model(150, 9.0)]]), "demo-temper-t1/sim");
   await closeStudyTx(tx, people.leadId, labId, temper.study.id);
   await unblindStudyTx(tx, people.leadId, labId, temper.study.id);
 
@@ -131,7 +142,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, finish.study.id, "demo-finish-f1");
   await startStudyTx(tx, people.leadId, labId, finish.study.id);
-  await simulateRuns(tx, labId, finish.study.id, content, new Map([[finish.arms[0].id, model(130, 5.8)], [finish.arms[1].id, model(175, 4.6)]]), "demo-finish-f1/sim");
+  await simulateRuns(tx, labId, finish.study.id, content, new Map([[finish.arms[0].id, model(130, 9.5)], [finish.arms[1].id, model(175, 7.5)]]), "demo-finish-f1/sim");
   await closeStudyTx(tx, people.leadId, labId, finish.study.id);
 
   // 3. Running: two runs done, the rest waiting for the demo tester.
@@ -150,7 +161,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, running.study.id, "demo-screen-s1");
   await startStudyTx(tx, people.leadId, labId, running.study.id);
-  await simulateRuns(tx, labId, running.study.id, content, new Map([[running.arms[0].id, model(155, 5.2)], [running.arms[1].id, model(150, 4.6)]]), "demo-screen-s1/sim", 2);
+  await simulateRuns(tx, labId, running.study.id, content, new Map([[running.arms[0].id, model(155, 8.0)], [running.arms[1].id, model(150, 7.0)]]), "demo-screen-s1/sim", 2);
 
   // 4. Randomized, not started yet: its label sheet and schedule can be printed.
   const randomized = await createStudy(tx, labId, people, {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { simulateCardDepthRun, simulateEdgeForceRun, type EdgeForceModel, type SimulationProtocol } from "~/domain/simulator";
+import { drawBladeEffect, simulateCardDepthRun, simulateEdgeForceRun, type EdgeForceModel, type SimulationProtocol } from "~/domain/simulator";
 
 // Common practice: a hand rope test reads a fresh edge well below 400 gf, checks at
 // heel, middle and tip, and stops at 400 gf with a confirmation reading.
@@ -107,5 +107,55 @@ describe("card-depth simulator", () => {
   it("refuses bad settings", () => {
     expect(() => simulateCardDepthRun({ seed: "c", model: cardModel, strokes: 2 })).toThrow(/initialStrokes \(3\) exceeds strokes \(2\)/);
     expect(() => simulateCardDepthRun({ seed: "c", model: { ...cardModel, declinePerStroke: -1 } })).toThrow(/declinePerStroke/);
+  });
+});
+
+describe("edge-force simulator realism: blade effect, dulling shape, chips", () => {
+  const realistic: EdgeForceModel = { ...model, curvature: 0, baselineSdGf: 4, lossRateSd: 0.2, bladeCv: 0.2, dullingScaleCuts: 30, noiseSdGf: 0 };
+  const wide = { ...protocol, cap: 200, thresholdGf: 5000 };
+
+  it("replicates of one blade share its effect; the between-blade CV is near the model's", () => {
+    // Hand-computed expectation: lognormal factors with mean 1 and CV 0.2.
+    const factors = Array.from({ length: 2000 }, (_, i) => drawBladeEffect(`blade-${i}`, 0.2).lossRateFactor);
+    const m = factors.reduce((a, b) => a + b, 0) / factors.length;
+    const sd = Math.sqrt(factors.reduce((a, b) => a + (b - m) ** 2, 0) / (factors.length - 1));
+    expect(m).toBeGreaterThan(0.97);
+    expect(m).toBeLessThan(1.03);
+    expect(sd / m).toBeGreaterThan(0.17);
+    expect(sd / m).toBeLessThan(0.23);
+    // Two replicates of one blade are closer than two blades (correlated replicates).
+    const end = (seed: string, blade: string) => simulateEdgeForceRun({ seed, bladeSeed: blade, model: realistic, protocol: wide }).checks.at(-1)!.aggregateGf;
+    let within = 0;
+    let between = 0;
+    for (let i = 0; i < 100; i++) {
+      within += Math.abs(end(`r1-${i}`, `b-${i}`) - end(`r2-${i}`, `b-${i}`));
+      between += Math.abs(end(`r1-${i}`, `b-${i}`) - end(`r2-${i}`, `c-${i}`));
+    }
+    expect(within).toBeLessThan(between / 2);
+  });
+
+  it("the dulling curve rises fast, then slower, and never falls", () => {
+    const run = simulateEdgeForceRun({ seed: "shape", bladeSeed: "b", model: { ...realistic, curvature: -0.05 }, protocol: wide });
+    const a = run.checks.map((c) => c.aggregateGf);
+    for (let i = 1; i < a.length; i++) expect(a[i]).toBeGreaterThanOrEqual(a[i - 1]);
+    const noCurvature = simulateEdgeForceRun({ seed: "shape", bladeSeed: "b", model: realistic, protocol: wide }).checks.map((c) => c.aggregateGf);
+    expect(noCurvature[10] - noCurvature[0]).toBeGreaterThan(noCurvature[100] - noCurvature[90]);
+  });
+
+  it("chips or rolled edges happen now and then and add a lasting jump", () => {
+    const runs = Array.from({ length: 200 }, (_, i) => simulateEdgeForceRun({ seed: `chip-${i}`, bladeSeed: `b-${i}`, model: { ...realistic, chipChancePerCheck: 0.01 }, protocol: wide }));
+    const withChip = runs.filter((r) => r.chips.length > 0).length;
+    // Hand-computed: 100 check intervals at 1 % each, P(at least one) = 1 - 0.99^100 = 0.63.
+    expect(withChip).toBeGreaterThan(100);
+    expect(withChip).toBeLessThan(160);
+    expect(runs.every((r) => r.chips.every((c) => c >= 1 && c <= 200))).toBe(true);
+  });
+
+  it("refuses a blade CV without a blade seed and values out of range", () => {
+    expect(() => simulateEdgeForceRun({ seed: "x", model: realistic, protocol })).toThrow(/bladeSeed/);
+    expect(() => simulateEdgeForceRun({ seed: "x", bladeSeed: "b", model: { ...realistic, bladeCv: 1.5 }, protocol })).toThrow(/bladeCv/);
+    expect(() => simulateEdgeForceRun({ seed: "x", bladeSeed: "b", model: { ...realistic, chipChancePerCheck: 2 }, protocol })).toThrow(/chipChancePerCheck/);
+    expect(() => simulateEdgeForceRun({ seed: "x", bladeSeed: "b", model: { ...realistic, dullingScaleCuts: 0 }, protocol })).toThrow(/dullingScaleCuts/);
+    expect(() => drawBladeEffect("", 0.2)).toThrow(/seed/);
   });
 });
