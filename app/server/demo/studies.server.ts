@@ -83,17 +83,18 @@ async function simulateRuns(tx: Transaction, labId: string, studyId: string, con
   }
 }
 
-// Invented demo models. Between-blade variation 20 % (common practice: 15-30 % between blades
-// of one batch), a smaller run-to-run spread within a blade, an edge that dulls fast then
-// slower over about 30 cuts, and a chip or rolled edge now and then.
+// Invented demo models. Blade effect with a between-blade CV of 15 % on baseline and loss rate,
+// which gives cuts to threshold a between-blade CV of about 20-25 % (common practice: 15-30 %
+// between blades of one batch); a smaller run-to-run spread within a blade; an edge that dulls
+// fast, then slower (scale 60 cuts); and a chip or rolled edge now and then.
 const model = (baseline: number, loss: number): EdgeForceModel => ({
   baselineMeanGf: baseline,
   baselineSdGf: 8,
   lossRatePerCut: loss,
   lossRateSd: loss * 0.06,
   curvature: 0,
-  dullingScaleCuts: 30,
-  bladeCv: 0.2,
+  dullingScaleCuts: 60,
+  bladeCv: 0.15,
   chipChancePerCheck: 0.004,
   chipJumpGf: 60,
   noiseSdGf: 14,
@@ -120,7 +121,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, temper.study.id, "demo-temper-t1");
   await startStudyTx(tx, people.leadId, labId, temper.study.id);
-  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 7.0)], [temper.arms[1].id, model(150, 9.0)]]), "demo-temper-t1/sim");
+  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 4.5)], [temper.arms[1].id, model(150, 6.5)]]), "demo-temper-t1/sim");
   await closeStudyTx(tx, people.leadId, labId, temper.study.id);
   await unblindStudyTx(tx, people.leadId, labId, temper.study.id);
 
@@ -142,7 +143,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, finish.study.id, "demo-finish-f1");
   await startStudyTx(tx, people.leadId, labId, finish.study.id);
-  await simulateRuns(tx, labId, finish.study.id, content, new Map([[finish.arms[0].id, model(130, 9.5)], [finish.arms[1].id, model(175, 7.5)]]), "demo-finish-f1/sim");
+  await simulateRuns(tx, labId, finish.study.id, content, new Map([[finish.arms[0].id, model(130, 7.0)], [finish.arms[1].id, model(175, 5.5)]]), "demo-finish-f1/sim");
   await closeStudyTx(tx, people.leadId, labId, finish.study.id);
 
   // 3. Running: two runs done, the rest waiting for the demo tester.
@@ -161,7 +162,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, running.study.id, "demo-screen-s1");
   await startStudyTx(tx, people.leadId, labId, running.study.id);
-  await simulateRuns(tx, labId, running.study.id, content, new Map([[running.arms[0].id, model(155, 8.0)], [running.arms[1].id, model(150, 7.0)]]), "demo-screen-s1/sim", 2);
+  await simulateRuns(tx, labId, running.study.id, content, new Map([[running.arms[0].id, model(155, 6.0)], [running.arms[1].id, model(150, 5.5)]]), "demo-screen-s1/sim", 2);
 
   // 4. Randomized, not started yet: its label sheet and schedule can be printed.
   const randomized = await createStudy(tx, labId, people, {
