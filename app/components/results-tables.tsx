@@ -34,6 +34,7 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                   <th scope="col" className="py-2 pr-3">95 % t-interval</th>
                   <th scope="col" className="py-2 pr-3">95 % bootstrap</th>
                   <th scope="col" className="py-2 pr-3 text-right">Censored</th>
+                  {view.rmstTau ? <th scope="col" className="py-2 pr-3">RMST to {view.rmstTau} cuts (SE; 95 % interval)</th> : null}
                 </tr>
               </thead>
               <tbody>
@@ -42,17 +43,36 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                     <th scope="row" className="py-2 pr-3 font-bold" data-testid="arm-label">{armLabel(a.arm)}</th>
                     <td className="py-2 pr-3 text-right">{a.nBlades}</td>
                     <td className="py-2 pr-3 text-right">{a.nRuns}</td>
-                    <td className="py-2 pr-3 text-right">{a.lowerBound ? "≥ " : ""}{fmt(a.mean, 2)}</td>
+                    <td className="py-2 pr-3 text-right">{a.lowerBound ? <abbr title="a lower bound: censored runs enter at the cap">≥ </abbr> : ""}{fmt(a.mean, 2)}{a.lowerBound ? <span className="sr-only"> (a lower bound)</span> : null}</td>
                     <td className="py-2 pr-3 text-right">{fmt(a.sd, 2)}</td>
                     <td className="py-2 pr-3 text-right">{fmt(a.median, 2)}</td>
                     <td className="py-2 pr-3">{fmtInterval(a.tInterval, 2)}</td>
-                    <td className="py-2 pr-3">{fmtInterval(a.bootstrap, 2)}</td>
+                    <td className="py-2 pr-3">
+                      {fmtInterval(a.bootstrap, 2)}
+                      {a.bootstrapDistinctResamples !== null && a.bootstrapDistinctResamples !== undefined ? <span className="block text-sm text-graphite-600">{a.bootstrapDistinctResamples} distinct resamples</span> : null}
+                    </td>
                     <td className="py-2 pr-3 text-right">{fmtPercent(a.censoredShare)}</td>
+                    {view.rmstTau ? (
+                      <td className="py-2 pr-3" data-testid="arm-rmst">{a.rmst ? `${fmt(a.rmst.estimate, 2)} (${fmt(a.rmst.se, 2)}; ${fmtInterval(a.rmst, 2)})` : "—"}</td>
+                    ) : null}
                   </tr>
                 ))}
               </tbody>
             </table>
           </div>
+          {view.arms.some((a) => a.censorWarning) ? (
+            <ul className="mt-2 text-sm" data-testid="arm-censor-notes">
+              {view.arms.filter((a) => a.censorWarning).map((a) => <li key={a.arm.key}>▲ {a.censorWarning}</li>)}
+            </ul>
+          ) : null}
+          {view.rmstTau ? (
+            <p className="mt-2 text-sm text-graphite-800">
+              RMST: restricted mean survival time, the area under each arm's Kaplan–Meier curve from 0 to the cap ({view.rmstTau} cuts), runs as units (Royston &amp; Parmar 2013); the mean-type summary that censored runs do not bias. Shown because some runs are censored.
+            </p>
+          ) : null}
+          {view.arms.some((a) => a.nBlades < 10) ? (
+            <p className="mt-1 text-sm text-graphite-800">Bootstrap: with fewer than 10 blades per arm the percentile bootstrap has few distinct resamples (4 blades: 35), so its interval is coarse and too narrow.</p>
+          ) : null}
         </section>
       ) : null}
       {view.comparisons.length ? (
@@ -68,7 +88,7 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                   <th scope="col" className="py-2 pr-3 text-right">Hedges' g</th>
                   <th scope="col" className="py-2 pr-3">95 % interval of g</th>
                   <th scope="col" className="py-2 pr-3 text-right">p</th>
-                  <th scope="col" className="py-2 pr-3 text-right">Holm p</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Holm p (intervals not adjusted)</th>
                   <th scope="col" className="py-2 pr-3">Method</th>
                 </tr>
               </thead>
@@ -84,15 +104,27 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                     <td className="py-2 pr-3 text-right">{fmtP(c.pHolm)}</td>
                     <td className="py-2 pr-3 text-sm">
                       {c.method} (df {fmt(c.df, 1)}); {c.gMethod}; Mann–Whitney p {fmtP(c.mannWhitneyP)} ({c.mannWhitneyMethod}), Holm {fmtP(c.mannWhitneyPHolm)}
+                      {c.rmstDifference ? (
+                        <span className="block" data-testid="comparison-rmst">
+                          RMST difference to {c.rmstDifference.tau} cuts: {fmt(c.rmstDifference.difference, 2)} ({fmtInterval(c.rmstDifference, 2)}), p {fmtP(c.rmstDifference.p)} (z test, runs as units)
+                        </span>
+                      ) : null}
+                      {c.censorWarning ? <span className="mt-1 block font-bold text-graphite-950" data-testid="comparison-censor-warning">▲ {c.censorWarning}</span> : null}
                     </td>
                   </tr>
                 ))}
               </tbody>
             </table>
           </div>
+          {view.holmNote ? <p className="mt-2 text-sm text-graphite-800">{view.holmNote}</p> : null}
           {view.logRank ? (
-            <p className="mt-3">
-              Log-rank test over runs: χ² = <span className="figures">{fmt(view.logRank.chiSquare, 2)}</span> on {view.logRank.df} df, p = <span className="figures">{fmtP(view.logRank.p)}</span>. {view.survivalNote}
+            <p className="mt-3" data-testid="log-rank">
+              Log-rank test over runs: χ² = <span className="figures">{fmt(view.logRank.chiSquare, 2)}</span> on {view.logRank.df} df,{" "}
+              {view.logRank.validForInference ? (
+                <>p = <span className="figures">{fmtP(view.logRank.p)}</span>. {view.survivalNote}</>
+              ) : (
+                <>p = <span className="figures">{fmtP(view.logRank.p)}</span>, <strong>not valid for inference when blades have replicates</strong> (runs of one blade are not independent; read the blade-level comparison above). {view.survivalNote}</>
+              )}
             </p>
           ) : null}
         </section>
@@ -112,8 +144,9 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                   <th scope="col" className="py-2 pr-3 text-right">d_z</th>
                   <th scope="col" className="py-2 pr-3">95 % interval of d_z</th>
                   <th scope="col" className="py-2 pr-3 text-right">p (paired t)</th>
-                  <th scope="col" className="py-2 pr-3 text-right">Holm p</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Holm p (intervals not adjusted)</th>
                   <th scope="col" className="py-2 pr-3">Wilcoxon signed-rank</th>
+                  <th scope="col" className="py-2 pr-3 text-right">Censored</th>
                 </tr>
               </thead>
               <tbody>
@@ -127,12 +160,17 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                     <td className="py-2 pr-3">{fmtInterval(w.dzInterval, 2)}</td>
                     <td className="py-2 pr-3 text-right">{fmtP(w.p)}</td>
                     <td className="py-2 pr-3 text-right">{fmtP(w.pHolm)}</td>
-                    <td className="py-2 pr-3 text-sm">p {fmtP(w.wilcoxonP)} ({w.wilcoxonMethod})</td>
+                    <td className="py-2 pr-3 text-sm">
+                      p {fmtP(w.wilcoxonP)} ({w.wilcoxonMethod})
+                      {w.censorWarning ? <span className="mt-1 block font-bold text-graphite-950" data-testid="within-censor-warning">▲ {w.censorWarning}</span> : null}
+                    </td>
+                    <td className="py-2 pr-3 text-right">{fmtPercent(w.censoredShare)}</td>
                   </tr>
                 ))}
               </tbody>
             </table>
           </div>
+          <p className="mt-2 text-sm text-graphite-800">{view.holmNote}</p>
         </section>
       ) : null}
     </div>

@@ -1,4 +1,4 @@
-import { useEffect, useId, useRef, useState } from "react";
+import { useEffect, useId, useRef, useState, type ReactNode } from "react";
 // Types only: erased at build time, so no vega code reaches a bundle from here.
 import type { VisualizationSpec } from "vega-embed";
 
@@ -69,6 +69,10 @@ type Props = {
   testId?: string;
   /** Height of the chart area in px, kept while loading so the page does not jump. */
   height?: number;
+  /** Caveats and figures shown under the chart in both views (rules, warnings, medians). */
+  notes?: ReactNode;
+  /** Further tables of the table view, after the main one. */
+  moreTables?: ChartTable[];
 };
 
 type State = { kind: "loading" } | { kind: "ready" } | { kind: "error"; message: string };
@@ -78,7 +82,7 @@ type State = { kind: "loading" } | { kind: "ready" } | { kind: "error"; message:
  * only, so the vega chunk stays off every page that does not chart. Expressions run
  * through vega-interpreter (`ast: true`), so no eval is needed under the CSP.
  */
-export function VegaChart({ spec, title, description, table, testId = "vega-chart", height = 320 }: Props) {
+export function VegaChart({ spec, title, description, table, testId = "vega-chart", height = 320, notes, moreTables = [] }: Props) {
   const target = useRef<HTMLDivElement>(null);
   const [state, setState] = useState<State>({ kind: "loading" });
   const [view, setView] = useState<"chart" | "table">("chart");
@@ -157,33 +161,36 @@ export function VegaChart({ spec, title, description, table, testId = "vega-char
       </div>
       {/* It scrolls on its own: focusable, so keyboard users can scroll it too. */}
       <div id={tableId} hidden={view !== "table"} className="max-h-96 overflow-y-auto" tabIndex={0} role="region" aria-label={`${title}: the numbers`}>
-        <table className="figures w-full border-collapse text-left">
-          <caption className="mb-2 text-left text-sm text-graphite-600">{table.caption}</caption>
-          <thead className="sticky top-0 bg-card">
-            <tr className="border-b-2 border-graphite-800">
-              {table.columns.map((c) => (
-                <th key={c.key} scope="col" className={`py-2 pr-4 ${c.numeric ? "text-right" : ""}`}>
-                  {c.label}
-                </th>
-              ))}
-            </tr>
-          </thead>
-          <tbody>
-            {table.rows.map((row, i) => (
-              <tr key={i} className="border-b border-rule">
-                {table.columns.map((c, j) => {
-                  const Cell = j === 0 ? "th" : "td";
-                  return (
-                    <Cell key={c.key} scope={j === 0 ? "row" : undefined} className={`py-1 pr-4 ${j === 0 ? "font-normal" : ""} ${c.numeric ? "text-right" : ""}`}>
-                      {c.format ? c.format(row[c.key]) : String(row[c.key] ?? "")}
-                    </Cell>
-                  );
-                })}
+        {[table, ...moreTables].map((t) => (
+          <table key={t.caption} className="figures mb-4 w-full border-collapse text-left">
+            <caption className="mb-2 text-left text-sm text-graphite-600">{t.caption}</caption>
+            <thead className="sticky top-0 bg-card">
+              <tr className="border-b-2 border-graphite-800">
+                {t.columns.map((c) => (
+                  <th key={c.key} scope="col" className={`py-2 pr-4 ${c.numeric ? "text-right" : ""}`}>
+                    {c.label}
+                  </th>
+                ))}
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {t.rows.map((row, i) => (
+                <tr key={i} className="border-b border-rule">
+                  {t.columns.map((c, j) => {
+                    const Cell = j === 0 ? "th" : "td";
+                    return (
+                      <Cell key={c.key} scope={j === 0 ? "row" : undefined} className={`py-1 pr-4 ${j === 0 ? "font-normal" : ""} ${c.numeric ? "text-right" : ""}`}>
+                        {c.format ? c.format(row[c.key]) : String(row[c.key] ?? "")}
+                      </Cell>
+                    );
+                  })}
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        ))}
       </div>
+      {notes ? <div className="mt-3 grid gap-1 text-sm text-graphite-800">{notes}</div> : null}
     </figure>
   );
 }

@@ -30,7 +30,8 @@ function checkTau(tau: number, fn: string): void {
  * RMST(tau) = integral_0^tau S(t) dt over the Kaplan–Meier step curve (Royston & Parmar
  * 2013, BMC Med Res Methodol 13:152). Variance as R's survival package: sum over event
  * times t_j <= tau of A_j^2 d_j / (n_j (n_j - d_j)), where A_j is the area under the curve
- * from t_j to tau (Klein & Moeschberger 2003, sec. 4.5). Interval: estimate +/- z SE.
+ * from t_j to tau (Klein & Moeschberger 2003, sec. 4.5). Interval: estimate +/- z SE, kept
+ * within [0, tau], where the RMST lies by definition.
  * Beyond the last observed time the curve is carried flat to tau.
  * @param observations at least one run, times finite and >= 0
  * @param options tau > 0 (e.g. the cap), level (0.95)
@@ -61,7 +62,7 @@ export function rmst(observations: readonly SurvivalObservation[], options: { ta
   const z = normalQuantile(1 - (1 - level) / 2);
   return {
     method: "restricted mean survival time (area under the Kaplan-Meier curve)",
-    tau, estimate, se, lower: estimate - z * se, upper: estimate + z * se, level, n: km.n, events: km.events,
+    tau, estimate, se, lower: Math.max(0, estimate - z * se), upper: Math.min(tau, estimate + z * se), level, n: km.n, events: km.events,
   };
 }
 

@@ -14,9 +14,19 @@ export function armNames(record: Pick<StudyRecord, "study" | "arms">): Map<strin
 type Interval = { lower: number; upper: number } | null;
 const iv = (m: { value: { lower: number; upper: number } | null } | undefined): Interval => (m?.value ? { lower: m.value.lower, upper: m.value.upper } : null);
 
+/** Text that goes with the Holm-adjusted p-values: the intervals beside them are not adjusted. */
+export const HOLM_NOTE = "Holm p is adjusted for the comparisons in this table; the intervals beside it are not adjusted (each is a 95 % interval on its own).";
+
+type KmMedianView = { estimate: number | null; lower: number | null; upper: number | null; reached: boolean; rule: string | null };
+
 export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
   const label = (key: string) => ({ key, name: names?.get(key)?.name ?? null });
   const p = analysis.parallel;
+  const rmstOf = (arm: string) => {
+    const r = p?.survival?.rmst?.arms.find((x) => x.arm === arm)?.result.value;
+    return r ? { estimate: r.estimate, se: r.se, lower: r.lower, upper: r.upper, tau: r.tau } : null;
+  };
+  const anyCensored = (p?.arms ?? []).some((a) => a.nCensoredRuns > 0);
   const arms =
     p?.arms.map((a) => ({
       arm: label(a.arm),
@@ -29,7 +39,12 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
       bootstrap: iv(a.bootstrap),
       censoredShare: a.censoredShare,
       lowerBound: a.lowerBound,
-      kmMedian: p.survival?.curves.find((c) => c.arm === a.arm)?.km.median ?? null,
+      kmMedian: kmMedianView(p.survival?.curves.find((c) => c.arm === a.arm)?.km.median),
+      nCensoredRuns: a.nCensoredRuns,
+      /** The arm row's own caveat: with censored runs its mean is a lower bound. */
+      censorWarning: a.warnings.find((w) => w.includes("lower bound")) ?? null,
+      bootstrapDistinctResamples: a.bootstrapDistinctResamples ?? null,
+      rmst: anyCensored ? rmstOf(a.arm) : null,
     })) ?? [];
   const comparisons =
     p?.comparisons?.value?.comparisons.map((c) => ({
@@ -47,6 +62,12 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
       mannWhitneyPHolm: c.pMannWhitneyHolm,
       mannWhitneyMethod: c.mannWhitney.pMethod,
       method: "Welch two-sample t on blade means, Holm-adjusted",
+      censorWarning: p.comparisonWarnings?.find((w) => w.a === c.a && w.b === c.b)?.warning ?? null,
+      rmstDifference: (() => {
+        if (!anyCensored) return null;
+        const d = p.survival?.rmst?.differences.find((x) => x.value?.a === c.a && x.value?.b === c.b)?.value;
+        return d ? { difference: d.difference, lower: d.lower, upper: d.upper, p: d.p, tau: d.tau } : null;
+      })(),
     })) ?? [];
   const logRank = p?.survival?.logRank?.value ?? null;
   const withinBlade =
@@ -65,13 +86,17 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
       dz: w.dz.value?.dz ?? null,
       dzInterval: w.dz.value ? { lower: w.dz.value.lower, upper: w.dz.value.upper } : null,
       censoredShare: w.censoredShare,
+      nCensoredRuns: w.nCensoredRuns,
+      censorWarning: w.censorWarning ?? null,
     })) ?? [];
   return {
     outcome: analysis.primaryOutcome,
     design: analysis.design,
     arms,
     comparisons,
-    logRank: logRank ? { chiSquare: logRank.chiSquare, df: logRank.df, p: logRank.p } : null,
+    logRank: logRank ? { chiSquare: logRank.chiSquare, df: logRank.df, p: logRank.p, validForInference: p?.survival?.logRankValidForInference ?? false } : null,
+    holmNote: HOLM_NOTE,
+    rmstTau: anyCensored ? (p?.survival?.rmst?.tau ?? null) : null,
     survivalNote: p?.survival?.note ?? null,
     withinBlade,
     flow: analysis.flow,
@@ -80,6 +105,16 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
     nBlades: p?.nBlades ?? analysis.withinBlade?.pairs[0]?.nBlades ?? 0,
     nRuns: p?.nRuns ?? analysis.flow.analysed,
   };
+}
+
+function kmMedianView(m: { estimate: number | null; lower: number | null; upper: number | null; reached: boolean; rule?: string } | undefined): KmMedianView | null {
+  return m ? { estimate: m.estimate, lower: m.lower, upper: m.upper, reached: m.reached, rule: m.rule ?? null } : null;
+}
+
+/** Cuts at which the survival chart prints the number at risk: 0, quarters of the horizon. */
+export function atRiskCuts(horizon: number): number[] {
+  if (!Number.isFinite(horizon) || horizon <= 0) throw new Error(`atRiskCuts: the horizon must be a finite number > 0, got ${String(horizon)}`);
+  return [0, 0.25, 0.5, 0.75, 1].map((f) => Math.round(f * horizon));
 }
 
 /** The numbers the charts draw, arms by label (and name after unblinding). */
@@ -93,10 +128,38 @@ export function chartData(analysis: StudyAnalysis, names: ReturnType<typeof armN
     ...view.comparisons.map((c) => ({ pair: `${display(c.a.key)} − ${display(c.b.key)}`, estimate: c.g, lower: c.gInterval.lower, upper: c.gInterval.upper, measure: "Hedges' g" })),
     ...view.withinBlade.filter((w) => w.dz !== null).map((w) => ({ pair: `${display(w.a.key)} − ${display(w.b.key)}`, estimate: w.dz!, lower: w.dzInterval!.lower, upper: w.dzInterval!.upper, measure: "d_z" })),
   ];
-  const survival =
-    analysis.parallel?.survival?.curves.flatMap((c) => [
-      { arm: display(c.arm), time: 0, survival: 1, lower: 1, upper: 1 },
-      ...c.km.steps.map((s) => ({ arm: display(c.arm), time: s.time, survival: s.survival, lower: s.lower, upper: s.upper })),
-    ]) ?? [];
-  return { outcome: analysis.primaryOutcome, runCurves, armCurves, armIntervals, effects, survival };
+  const curves = analysis.parallel?.survival?.curves ?? [];
+  const tau = analysis.parallel?.survival?.rmst?.tau ?? null;
+  // Each curve is carried on to the cap (or, without one, the last observed time of any arm).
+  const lastTime = (c: (typeof curves)[number]) => Math.max(0, ...c.km.steps.map((s) => s.time), ...c.km.censorTimes);
+  const horizon = tau ?? Math.max(0, ...curves.map(lastTime));
+  const survival = curves.flatMap((c) => {
+    const end = tau ?? lastTime(c);
+    const pts = [
+      { arm: display(c.arm), time: 0, survival: 1, lower: 1 as number | null, upper: 1 as number | null, atRisk: c.km.n },
+      ...c.km.steps.map((s) => ({ arm: display(c.arm), time: s.time, survival: s.survival, lower: s.lower, upper: s.upper, atRisk: s.atRisk })),
+    ];
+    const last = pts[pts.length - 1];
+    // A flat tail (no events after the last step, or no events at all) still needs a line to its end.
+    if (end > last.time) pts.push({ ...last, time: end, atRisk: c.km.censorTimes.filter((t) => t >= end).length });
+    return pts;
+  });
+  const censorTicks = curves.flatMap((c) =>
+    c.km.censorTimes.map((time) => {
+      const before = c.km.steps.filter((s) => s.time <= time);
+      return { arm: display(c.arm), time, survival: before.length ? before[before.length - 1].survival : 1 };
+    }),
+  );
+  const atRisk = horizon > 0
+    ? curves.flatMap((c) => {
+        const all = analysis.runs.filter((r) => r.armKey === c.arm && r.value !== null);
+        return atRiskCuts(horizon).map((cut) => ({ arm: display(c.arm), cut, n: all.filter((r) => r.value! >= cut).length }));
+      })
+    : [];
+  const medians = curves.map((c) => ({ arm: display(c.arm), ...(kmMedianView(c.km.median) ?? { estimate: null, lower: null, upper: null, reached: false, rule: null }) }));
+  return {
+    outcome: analysis.primaryOutcome, runCurves, armCurves, armCurveRule: analysis.armCurveRule ?? null, armIntervals, effects,
+    survival, censorTicks, atRisk, medians, survivalHorizon: horizon,
+    censorCaveats: [...view.comparisons.map((c) => c.censorWarning), ...view.withinBlade.map((w) => w.censorWarning)].filter((w): w is string => !!w),
+  };
 }

@@ -69,6 +69,7 @@ async function createStudy(
 async function simulateRuns(tx: Transaction, labId: string, studyId: string, content: ProtocolContent, models: Map<string, EdgeForceModel>, seed: string, limit = Infinity) {
   const protocol = toForceProtocol(content)!;
   const rows = await tx.select().from(runs).where(eq(runs.studyId, studyId)).orderBy(asc(runs.schedulePosition));
+  const armIndex = new Map((await tx.select().from(studyArms).where(eq(studyArms.studyId, studyId))).map((a) => [a.id, a.position]));
   // The blade's inventory number seeds its effect, so its replicates (and both conditions of a within-blade study) share it.
   const inventory = new Map(
     (await tx.select({ id: studyBlades.id, inv: blades.inventoryNumber }).from(studyBlades).innerJoin(blades, eq(blades.id, studyBlades.bladeId)).where(eq(studyBlades.studyId, studyId))).map((b) => [b.id, b.inv]),
@@ -77,7 +78,10 @@ async function simulateRuns(tx: Transaction, labId: string, studyId: string, con
   let done = 0;
   for (const run of rows) {
     if (done >= limit) break;
-    await recordSimulatedRun(tx, { labId, runId: run.id, testerId: run.testerId, protocol, model: models.get(run.armId)!, seed: `${seed}/run-${run.schedulePosition}`, bladeSeed: `${seed}/blade-${inventory.get(run.studyBladeId)}`, startAt: new Date(start) });
+    // Seeded by blade, condition and the blade's run number, not by schedule position: the schedule
+    // order follows random row ids, and the demo's outcomes (its censored runs) must not depend on it.
+    const inv = inventory.get(run.studyBladeId);
+    await recordSimulatedRun(tx, { labId, runId: run.id, testerId: run.testerId, protocol, model: models.get(run.armId)!, seed: `${seed}/${inv}/arm-${armIndex.get(run.armId)}/run-${run.bladeRunNumber}`, bladeSeed: `${seed}/blade-${inv}`, startAt: new Date(start) });
     start += 3 * 3600_000;
     done++;
   }
@@ -121,7 +125,7 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, temper.study.id, "demo-temper-t1");
   await startStudyTx(tx, people.leadId, labId, temper.study.id);
-  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 4.5)], [temper.arms[1].id, model(150, 6.5)]]), "demo-temper-t1/sim");
+  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 3.8)], [temper.arms[1].id, model(150, 6.5)]]), "demo-temper-t1/sim");
   await closeStudyTx(tx, people.leadId, labId, temper.study.id);
   await unblindStudyTx(tx, people.leadId, labId, temper.study.id);
 

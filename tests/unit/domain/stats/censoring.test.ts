@@ -31,6 +31,13 @@ suite("restricted mean survival time", () => {
     expectRel(d.lower, d.difference - 1.959963984540054 * d.se, 1e-12);
     expect(d.p!).toBeLessThan(1e-4);
   });
+  it("the interval stays within [0, tau]", () => {
+    // Hand-computed: 3 of 4 runs censored at tau = 10, one event at 9: RMST 9.75, close to tau.
+    const r = rmst([{ time: 9, event: true }, ...[1, 2, 3].map(() => ({ time: 10, event: false }))], { tau: 10 });
+    expectRel(r.estimate, 9.75, 1e-12);
+    expect(r.upper).toBeLessThanOrEqual(10);
+    expect(r.lower).toBeGreaterThanOrEqual(0);
+  });
   it("a curve that ends before tau is carried flat to tau", () => {
     // Hand-computed: times 2, 4+ with tau 10: S = 1 on [0,2), 0.5 on [2,10): area 2 + 4 = 6.
     expect(rmst([{ time: 2, event: true }, { time: 4, event: false }], { tau: 10 }).estimate).toBe(6);
