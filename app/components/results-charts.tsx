@@ -150,8 +150,8 @@ function survivalSpec(d: ChartData): VisualizationSpec {
   // The number at risk sits under the curves, one row per arm, below S = 0.
   const rowStep = 0.07;
   const bottom = -rowStep * (arms.length + 1);
-  const x = { field: "time", type: "quantitative", title: "Cuts", ...(d.survivalHorizon ? { scale: { domain: [0, d.survivalHorizon] } } : {}) } as const;
-  const y = { type: "quantitative", title: "Share of runs not yet at the threshold", scale: { domain: [bottom, 1] }, axis: { values: [0, 0.25, 0.5, 0.75, 1] } } as const;
+  const x = { field: "time", type: "quantitative", title: "Cuts", axis: { tickCount: 10 }, ...(d.survivalHorizon ? { scale: { domain: [0, d.survivalHorizon] } } : {}) } as const;
+  const y = { type: "quantitative", title: "Share of runs not yet at the threshold", scale: { domain: [bottom, 1] }, axis: { values: [0, 0.25, 0.5, 0.75, 1], format: ".2f" } } as const;
   const atRisk = (d.atRisk ?? []).map((a) => ({ ...a, row: -rowStep * (arms.indexOf(a.arm) + 1.2) }));
   const medians = (d.medians ?? []).filter((m) => m.estimate !== null).map((m) => ({ arm: m.arm, time: m.estimate, half: 0.5, zero: 0 }));
   return {
@@ -159,12 +159,12 @@ function survivalSpec(d: ChartData): VisualizationSpec {
     width: "container",
     height: 300 + 24 * (arms.length + 1),
     layer: [
-      { data: { values: d.survival }, mark: { type: "area", interpolate: "step-after", opacity: 0.18 }, encoding: { x, y: { ...y, field: "lower" }, y2: { field: "upper" }, color: { ...color, legend: null } } },
-      { data: { values: d.survival }, mark: { type: "line", interpolate: "step-after" }, encoding: { x, y: { ...y, field: "survival" }, color, tooltip: [{ field: "arm", title: "Arm" }, { field: "time", title: "Cuts", format: ".1f" }, { field: "survival", title: "Share not yet dull", format: ".3f" }, { field: "atRisk", title: "At risk" }] } },
-      ...(d.censorTicks?.length ? [{ data: { values: d.censorTicks }, mark: { type: "tick" as const, orient: "vertical" as const, size: 14, thickness: 2 }, encoding: { x, y: { ...y, field: "survival" }, color: { ...color, legend: null }, tooltip: [{ field: "arm", title: "Arm" }, { field: "time", title: "Censored at (cuts)" }] } }] : []),
-      ...(medians.length ? [{ data: { values: medians }, mark: { type: "rule" as const, strokeDash: [4, 3], strokeWidth: 1.5 }, encoding: { x: { field: "time", type: "quantitative" as const }, y: { field: "zero", type: "quantitative" as const }, y2: { field: "half" }, color: { ...color, legend: null } } }] : []),
+      { data: { values: d.survival }, mark: { type: "area", interpolate: "step-after", opacity: 0.18 }, encoding: { x, y: { ...y, field: "lower" }, y2: { field: "upper" }, color } },
+      { data: { values: d.survival }, mark: { type: "line", interpolate: "step-after" }, encoding: { x, y: { ...y, field: "survival" }, color: { ...color, legend: { orient: "top", labelLimit: 400 } }, tooltip: [{ field: "arm", title: "Arm" }, { field: "time", title: "Cuts", format: ".1f" }, { field: "survival", title: "Share not yet dull", format: ".3f" }, { field: "atRisk", title: "At risk" }] } },
+      ...(d.censorTicks?.length ? [{ data: { values: d.censorTicks }, mark: { type: "tick" as const, orient: "vertical" as const, size: 14, thickness: 2 }, encoding: { x, y: { ...y, field: "survival" }, color, tooltip: [{ field: "arm", title: "Arm" }, { field: "time", title: "Censored at (cuts)" }] } }] : []),
+      ...(medians.length ? [{ data: { values: medians }, mark: { type: "rule" as const, strokeDash: [4, 3], strokeWidth: 1.5 }, encoding: { x: { field: "time", type: "quantitative" as const }, y: { field: "zero", type: "quantitative" as const }, y2: { field: "half" }, color } }] : []),
       { data: { values: [{ t: 0, row: -rowStep * 0.35, label: "At risk" }] }, mark: { type: "text", align: "left", fontWeight: "bold" }, encoding: { x: { field: "t", type: "quantitative" }, y: { field: "row", type: "quantitative" }, text: { field: "label" } } },
-      ...(atRisk.length ? [{ data: { values: atRisk }, mark: { type: "text" as const }, encoding: { x: { field: "cut", type: "quantitative" as const }, y: { field: "row", type: "quantitative" as const }, text: { field: "n" }, color: { ...color, legend: null } } }] : []),
+      ...(atRisk.length ? [{ data: { values: atRisk }, mark: { type: "text" as const }, encoding: { x: { field: "cut", type: "quantitative" as const }, y: { field: "row", type: "quantitative" as const }, text: { field: "n" }, color } }] : []),
     ],
   } as VisualizationSpec;
 }
