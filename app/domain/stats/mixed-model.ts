@@ -15,8 +15,9 @@
  *   -2 l_R(gamma) = (N - p)(1 + log(2 pi sigma^2(gamma))) + log|H| + log|X' H^-1 X|,
  *   sigma^2(gamma) = (y' H^-1 y - y' H^-1 X beta(gamma)) / (N - p).
  * It is maximized over gamma >= 0 by a bounded one-dimensional search: gamma = 0 and a grid of
- * log10 gamma from -8 to 8 in steps of 0.25, then golden-section search between the best
- * grid point's neighbours (to 1e-10 in log10 gamma). A maximum at gamma = 0 is reported as
+ * log10 gamma from -8 to 8 in steps of 0.25, then bisection on the REML score (its exact
+ * derivative) between the best grid point's neighbours, or golden-section search on the profile
+ * where the score does not change sign there. A maximum at gamma = 0 is reported as
  * a boundary estimate (no between-blade variance).
  *
  * Degrees of freedom: Satterthwaite (1946) for each contrast, with the asymptotic covariance of
@@ -88,7 +89,7 @@ export interface VarianceComponents {
 /** Result of fitRandomIntercept(). */
 export interface RandomInterceptFit {
   method: "linear mixed model, blade random intercept, REML";
-  optimizer: "profiled REML over the variance ratio: grid on log10(ratio) in [-8, 8] and golden-section search";
+  optimizer: "profiled REML over the variance ratio: grid on log10(ratio) in [-8, 8], then bisection on the REML score";
   dfMethod: DfMethod;
   nBlades: number;
   nRuns: number;
@@ -229,27 +230,64 @@ function maximizeProfile(g: GroupedCrossProducts): ProfilePoint {
   if (bestLog >= LOG_MAX - 1e-9) {
     throw new Error("fitRandomIntercept: the within-blade variance is estimated as zero (the replicates of each blade agree exactly), so the model cannot be fitted");
   }
-  // Golden-section search between the neighbours of the best grid point.
   let a = Math.max(LOG_MIN, bestLog - GRID_STEP);
   let b = Math.min(LOG_MAX, bestLog + GRID_STEP);
-  const f = (x: number) => at(x)?.minus2 ?? Number.POSITIVE_INFINITY;
-  let c = b - INV_PHI * (b - a);
-  let d = a + INV_PHI * (b - a);
-  let fc = f(c);
-  let fd = f(d);
-  while (b - a > 1e-10) {
-    if (fc < fd) {
-      b = d; d = c; fd = fc; c = b - INV_PHI * (b - a); fc = f(c);
-    } else {
-      a = c; c = d; fc = fd; d = a + INV_PHI * (b - a); fd = f(d);
+  // Where the REML score changes sign across the bracket, bisect on it: the score is exact,
+  // whereas the flat profile only locates its maximum to about the square root of machine precision.
+  const sa = profileScore(g, 10 ** a);
+  const sb = profileScore(g, 10 ** b);
+  if (sa !== null && sb !== null && sa < 0 && sb > 0) {
+    for (let i = 0; i < 100 && b - a > 1e-13; i++) {
+      const mid = (a + b) / 2;
+      const sm = profileScore(g, 10 ** mid);
+      if (sm === null) break;
+      if (sm < 0) a = mid;
+      else b = mid;
+    }
+  } else {
+    // Golden-section search between the neighbours of the best grid point.
+    const f = (x: number) => at(x)?.minus2 ?? Number.POSITIVE_INFINITY;
+    let c = b - INV_PHI * (b - a);
+    let d = a + INV_PHI * (b - a);
+    let fc = f(c);
+    let fd = f(d);
+    while (b - a > 1e-10) {
+      if (fc < fd) {
+        b = d; d = c; fd = fc; c = b - INV_PHI * (b - a); fc = f(c);
+      } else {
+        a = c; c = d; fc = fd; d = a + INV_PHI * (b - a); fd = f(d);
+      }
     }
   }
   const refined = at((a + b) / 2);
-  if (refined && refined.minus2 <= best.minus2) best = refined;
+  if (refined && refined.minus2 <= best.minus2 + 1e-9 * Math.abs(best.minus2)) best = refined;
   // If the lowest grid point won, compare with the boundary once more.
   const zero = profile(g, 0);
   if (zero && zero.minus2 < best.minus2) best = zero;
   return best;
+}
+
+/**
+ * Derivative of the profiled -2 l_R in gamma. sigma^2 and beta sit at their optima, so only the
+ * partial derivative remains: tr(P_H Z Z') - r' H^-1 Z Z' H^-1 r / sigma^2, which per blade is
+ * n_i f_i - f_i^2 s_i' C s_i - f_i^2 (r_i' 1)^2 / sigma^2 with f_i = 1/(1 + n_i gamma),
+ * C = (X' H^-1 X)^-1 and s_i the blade's column totals of X.
+ */
+function profileScore(g: GroupedCrossProducts, gamma: number): number | null {
+  const pt = profile(g, gamma);
+  if (!pt) return null;
+  const p = g.p;
+  const v = [...pt.beta.map((x) => -x), 1]; // r_i' 1 = v' s_i
+  let score = 0;
+  for (const [n, e] of g.bySize) {
+    const f = 1 / (1 + n * gamma);
+    let trCS = 0;
+    for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) trCS += pt.xhxInverse[a][b] * e.outer[b][a];
+    let rr = 0;
+    for (let a = 0; a <= p; a++) for (let b = 0; b <= p; b++) rr += v[a] * e.outer[a][b] * v[b];
+    score += e.blades * n * f - f * f * trCS - (f * f * rr) / pt.sigma2;
+  }
+  return score;
 }
 
 type Pair = [number, number]; // alpha I + beta J on a block of n runs
@@ -489,7 +527,7 @@ export function fitRandomIntercept(data: RandomInterceptData, options: { level?:
   const dfMethod: DfMethod = separable ? "Satterthwaite" : "residual (one run per blade)";
   const fit: RandomInterceptFit = {
     method: "linear mixed model, blade random intercept, REML",
-    optimizer: "profiled REML over the variance ratio: grid on log10(ratio) in [-8, 8] and golden-section search",
+    optimizer: "profiled REML over the variance ratio: grid on log10(ratio) in [-8, 8], then bisection on the REML score",
     dfMethod,
     nBlades: g.nBlades,
     nRuns: N,

@@ -81,10 +81,10 @@ suite("balanced one-way data: REML equals the ANOVA estimators", () => {
         const msw = groups.reduce((s, g, i) => s + g.reduce((t, v) => t + (v - means[i]) ** 2, 0), 0) / (m * (n - 1));
         const msb = (n * ss.sampleVariance(means));
         if (msb > msw * 1.001) {
-          expectRel(fit.variance.withinBlade, msw, 1e-5);
-          expectRel(fit.variance.betweenBlades!, (msb - msw) / n, 1e-4);
+          expectRel(fit.variance.withinBlade, msw, 1e-9);
+          expectRel(fit.variance.betweenBlades!, (msb - msw) / n, 1e-8);
           // Source: the balanced containment df m - 1 (references.md, Rail: 5 df by containment and Satterthwaite).
-          expectRel(fit.coefficients[0].df, m - 1, 1e-5);
+          expectRel(fit.coefficients[0].df, m - 1, 1e-8);
         } else if (msb < msw * 0.999) {
           expect(fit.variance.atBoundary).toBe(true);
           expect(fit.variance.betweenBlades).toBe(0);
@@ -156,11 +156,10 @@ suite("properties of the blade model", () => {
       const runs = simulate(seed, { bladesPerArm: 5, replicates: 2 });
       const ab = fitBladeModel(runs, { reference: "A" }).armDifferences[0];
       const ba = fitBladeModel(runs, { reference: "B" }).armDifferences[0];
-      // The variance ratio is found to about 1e-7 (relative; the profile is flat at its maximum).
-      expectRel(ba.estimate, -ab.estimate, 1e-6);
-      expectRel(ba.se, ab.se, 1e-6);
-      expectRel(ba.df, ab.df, 1e-5);
-      expectRel(ba.p, ab.p, 1e-5);
+      expectRel(ba.estimate, -ab.estimate, 1e-9);
+      expectRel(ba.se, ab.se, 1e-9);
+      expectRel(ba.df, ab.df, 1e-8);
+      expectRel(ba.p, ab.p, 1e-8);
     }), { numRuns: 25 });
   });
   it("a pure-noise covariate changes the arm estimate by far less than its SE on 200 blades", () => {
