@@ -59,6 +59,24 @@ suite("two-period crossover (AB/BA)", () => {
   });
 });
 
+suite("a published 2x2 crossover", () => {
+  // Peak expiratory flow (l/min) of 13 children, formoterol (F) against salbutamol (S): Senn (2002),
+  // Cross-over Trials in Clinical Research, 2nd ed., ch. 3 (data and estimate from memory).
+  const fs = [[310, 270], [310, 260], [370, 300], [410, 390], [250, 210], [380, 350], [330, 365]];
+  const sf = [[370, 385], [310, 400], [380, 410], [290, 320], [260, 340], [90, 220]];
+  const blades: CrossoverBlade[] = [
+    ...fs.map(([a, b], i) => ({ bladeId: `fs-${i}`, sequence: "AB" as const, period1: a, period2: b })),
+    ...sf.map(([a, b], i) => ({ bladeId: `sf-${i}`, sequence: "BA" as const, period1: a, period2: b })),
+  ];
+  it("the treatment estimate adjusted for period", () => {
+    const r = crossover2x2(blades, { conditionA: "formoterol", conditionB: "salbutamol" });
+    // Source: Senn (2002), ch. 3 (from memory): formoterol minus salbutamol 46.6 l/min, on 11 df.
+    expectRel(r.treatment.estimate, 46.607, 1e-4);
+    expect(r.treatment.df).toBe(11);
+    expect(r.treatment.lower).toBeGreaterThan(0);
+  });
+});
+
 suite("more than two conditions within the blade", () => {
   // Every ordering of three conditions (a balanced design for first-order period effects; Williams 1949,
   // Aust. J. Sci. Res. A2:149-168, from memory), two blades per ordering.
