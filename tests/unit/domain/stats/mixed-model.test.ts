@@ -135,6 +135,33 @@ suite("one run per blade reproduces the pooled (equal-variance) two-sample t", (
   });
 });
 
+suite("a covariate with one run per blade is the classical analysis of covariance", () => {
+  it("adjusted difference = raw difference - pooled within-arm slope x covariate difference", () => {
+    fc.assert(fc.property(fc.string(), (seed) => {
+      const rng = seedrandom(seed);
+      const make = (arm: string, shift: number, n: number): ModelRun[] => Array.from({ length: n }, (_, i) => {
+        const hardness = 58 + 4 * rng() + shift / 4;
+        return { bladeId: `${arm}${i}`, arm, value: 200 + shift + 5 * hardness + 6 * rng(), covariates: { hardness } };
+      });
+      const runs = [...make("A", 0, 7), ...make("B", 3, 9)];
+      const r = fitBladeModel(runs, { covariates: ["hardness"] });
+      // Source: the one-way analysis of covariance with a pooled within-group slope (Snedecor & Cochran 1989,
+      // Statistical Methods, 8th ed., ch. 18, from memory), computed here from the sums of squares.
+      const by = (arm: string) => runs.filter((x) => x.arm === arm);
+      const stats = (g: ModelRun[]) => {
+        const xs = g.map((x) => x.covariates!.hardness as number), ys = g.map((x) => x.value);
+        const mx = ss.mean(xs), my = ss.mean(ys);
+        return { mx, my, sxx: xs.reduce((t, x) => t + (x - mx) ** 2, 0), sxy: xs.reduce((t, x, i) => t + (x - mx) * (ys[i] - my), 0) };
+      };
+      const a = stats(by("A")), b = stats(by("B"));
+      const slope = (a.sxy + b.sxy) / (a.sxx + b.sxx);
+      expectRel(r.covariateEffects[0].estimate, slope, 1e-9);
+      expectRel(r.armDifferences[0].estimate, b.my - a.my - slope * (b.mx - a.mx), 1e-9);
+      expect(r.armDifferences[0].df).toBe(16 - 3);
+    }), { numRuns: 20 });
+  });
+});
+
 suite("the F test of arms against jstat's one-way ANOVA", () => {
   it("balanced replicates: the arm F test equals the ANOVA of blade means, on (k - 1, m - k) df", () => {
     const runs = simulate("anova-3", { bladesPerArm: 6, replicates: 3, arms: ["A", "B", "C"], effect: 2, sdBlade: 3, sdRun: 1 });
