@@ -1,6 +1,6 @@
 import { describe as suite, it, expect } from "vitest";
 import seedrandom from "seedrandom";
-import { equivalencePower, equivalenceSampleSize, equivalenceTest, nonInferioritySampleSize, nonInferiorityTest, normalQuantile, pairedT, studentTQuantile, tTestSampleSize } from "~/domain/stats/index.ts";
+import { fitBladeModel, equivalencePower, equivalenceSampleSize, equivalenceTest, nonInferioritySampleSize, nonInferiorityTest, normalQuantile, pairedT, studentTQuantile, tTestSampleSize } from "~/domain/stats/index.ts";
 import { expectRel, expectRounded } from "./helpers.ts";
 
 const drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0];
@@ -42,6 +42,20 @@ suite("TOST on the sleep data", () => {
     expect(() => nonInferiorityTest(estimate, { margin: -1, better: "higher" })).toThrow(/margin must be positive/);
     expect(() => nonInferiorityTest(estimate, { margin: Number.NaN, better: "higher" })).toThrow(/finite number/);
     expect(() => equivalenceTest({ ...estimate, se: 0 }, { margin: 1 })).toThrow(/standard error must be positive/);
+  });
+});
+
+suite("a mixed-model contrast as the estimate", () => {
+  it("TOST and non-inferiority read the adjusted arm difference with its Satterthwaite df", () => {
+    const rng = seedrandom("model-tost");
+    const runs = Array.from({ length: 40 }, (_, b) => ({ b, u: 4 * (rng() - 0.5) })).flatMap(({ b, u }) =>
+      [0, 1, 2].map(() => ({ bladeId: `blade-${b}`, arm: b % 2 ? "B" : "A", value: 300 + (b % 2) * 0.5 + u + 2 * (rng() - 0.5) })));
+    const d = fitBladeModel(runs, { reference: "A" }).armDifferences[0];
+    const tost = equivalenceTest(d, { margin: 3 });
+    // Source: Schuirmann (1987): the (1 - 2 alpha) interval is estimate ± t_{1-alpha, df} SE on the contrast's df.
+    expectRel(tost.upper - tost.lower, 2 * studentTQuantile(0.95, d.df) * d.se, 1e-10);
+    expect(tost.equivalent).toBe(tost.lower > -3 && tost.upper < 3);
+    expect(nonInferiorityTest(d, { margin: 3, better: "higher" }).lower).toBeCloseTo(tost.lower, 12);
   });
 });
 
