@@ -21,8 +21,10 @@
  * a boundary estimate (no between-blade variance).
  *
  * Degrees of freedom: Satterthwaite (1946) for each contrast, with the asymptotic covariance of
- * (sigma_b^2, sigma^2) taken as the inverse of the expected REML information
- * I_jk = tr(P V_j P V_k) / 2 (V_1 = Z Z', V_2 = I); multi-degree-of-freedom F tests use the
+ * (sigma_b^2, sigma^2) taken as the inverse of the observed REML information
+ * y'P V_j P V_k P y - tr(P V_j P V_k) / 2 (V_1 = Z Z', V_2 = I), as R's lmerTest does (it
+ * differentiates numerically); where that is not positive definite (a fit at the boundary),
+ * the expected information tr(P V_j P V_k) / 2; multi-degree-of-freedom F tests use the
  * Satterthwaite approximation of Fai & Cornelius (1996), J. Statist. Comput. Simul. 54:363-378,
  * as R's lmerTest does (Kuznetsova, Brockhoff & Christensen 2017, J. Stat. Softw. 82(13)).
  * With one run per blade the two variances cannot be told apart: the model is then ordinary
@@ -114,6 +116,8 @@ export interface SatterthwaiteState {
   tBetween: number[][];
   tWithin: number[][];
   thetaCovariance: number[][];
+  /** Which REML information was inverted: the observed (as lmerTest), or the expected where the observed is not positive definite. */
+  information: "observed" | "expected";
 }
 
 interface GroupedCrossProducts {
@@ -310,38 +314,52 @@ const quad = (l: readonly number[], A: number[][], r: readonly number[]) => {
   return s;
 };
 
-function satterthwaiteState(g: GroupedCrossProducts, sigma2: number, sigmaB2: number, cov: number[][]): SatterthwaiteState | null {
+function satterthwaiteState(g: GroupedCrossProducts, sigma2: number, sigmaB2: number, cov: number[][], beta: readonly number[]): SatterthwaiteState | null {
   const p = g.p;
   const a = 1 / sigma2;
   const c = (n: number) => -sigmaB2 / (sigma2 * (sigma2 + n * sigmaB2));
   const Q = (n: number): Pair => [a, c(n)];
   const Vs: Pair[] = [[0, 1], [1, 0]]; // Z Z' (between), I (within)
   const blockProduct = (n: number, parts: Pair[]) => parts.reduce((acc, x) => mul(acc, x, n), [1, 0] as Pair);
-  // X' M X for a block operator M = alpha I + beta_n J: alpha X'X + sum_n beta_n S_n.
-  const project = (op: (n: number) => Pair): number[][] => {
+  // W' M W for a block operator M = alpha I + beta_n J: alpha W'W + sum_n beta_n S_n (W = [X y]).
+  const projectW = (op: (n: number) => Pair): number[][] => {
     const alpha = op(1)[0]; // the I-part never depends on n (it is a power of 1/sigma^2 or 0)
-    return combine(g, alpha, (n) => op(n)[1], p);
+    return combine(g, alpha, (n) => op(n)[1], p + 1);
   };
-  const T = Vs.map((Vk) => project((n) => blockProduct(n, [Q(n), Vk, Q(n)])));
-  const info = zeros(2, 2);
+  const xPart = (m: number[][]) => m.slice(0, p).map((row) => row.slice(0, p));
+  // v = [-beta; 1], so W v = y - X beta = r, the residual at the REML estimate.
+  const v = [...beta.map((x) => -x), 1];
+  const times = (m: number[][], x: readonly number[]) => m.map((row) => row.reduce((s, y, j) => s + y * x[j], 0));
+  const QVQ = Vs.map((Vk) => projectW((n) => blockProduct(n, [Q(n), Vk, Q(n)])));
+  const T = QVQ.map(xPart);
+  const u = QVQ.map((m) => times(m, v).slice(0, p)); // X' Q V_k Q r
+  const expected = zeros(2, 2);
+  const observed = zeros(2, 2);
   for (let j = 0; j < 2; j++) for (let k = j; k < 2; k++) {
     let trQQ = 0;
     for (const [n, e] of g.bySize) {
       const m = blockProduct(n, [Q(n), Vs[j], Q(n), Vs[k]]);
       trQQ += e.blades * n * (m[0] + m[1]);
     }
-    const S = project((n) => blockProduct(n, [Q(n), Vs[j], Q(n), Vs[k], Q(n)]));
-    const v = 0.5 * (trQQ - 2 * trace(matMul(cov, S)) + trace(matMul(matMul(cov, T[j]), matMul(cov, T[k]))));
-    info[j][k] = v;
-    info[k][j] = v;
+    const SW = projectW((n) => blockProduct(n, [Q(n), Vs[j], Q(n), Vs[k], Q(n)]));
+    const S = xPart(SW);
+    // tr(P V_j P V_k) with P = Q - Q X C X' Q.
+    const trPP = trQQ - 2 * trace(matMul(cov, S)) + trace(matMul(matMul(cov, T[j]), matMul(cov, T[k])));
+    // r' Q V_j P V_k Q r = y' P V_j P V_k P y.
+    const quadratic = quad(v, SW, v) - quad(u[j], cov, u[k]);
+    expected[j][k] = expected[k][j] = 0.5 * trPP;
+    observed[j][k] = observed[k][j] = quadratic - 0.5 * trPP;
   }
-  const det = info[0][0] * info[1][1] - info[0][1] * info[1][0];
-  if (!(det > 0) || !Number.isFinite(det)) return null;
-  const thetaCovariance = [
-    [info[1][1] / det, -info[0][1] / det],
-    [-info[1][0] / det, info[0][0] / det],
-  ];
-  return { tBetween: T[0], tWithin: T[1], thetaCovariance };
+  const invert = (m: number[][]) => {
+    const det = m[0][0] * m[1][1] - m[0][1] * m[1][0];
+    if (!(det > 0) || !(m[0][0] > 0) || !Number.isFinite(det)) return null;
+    return [[m[1][1] / det, -m[0][1] / det], [-m[1][0] / det, m[0][0] / det]];
+  };
+  const fromObserved = invert(observed);
+  if (fromObserved) return { tBetween: T[0], tWithin: T[1], thetaCovariance: fromObserved, information: "observed" };
+  const fromExpected = invert(expected);
+  if (fromExpected) return { tBetween: T[0], tWithin: T[1], thetaCovariance: fromExpected, information: "expected" };
+  return null;
 }
 
 function contrastDf(fit: Pick<RandomInterceptFit, "covariance" | "satterthwaite" | "residualDf">, l: readonly number[]): number {
@@ -523,7 +541,7 @@ export function fitRandomIntercept(data: RandomInterceptData, options: { level?:
   const sigmaB2 = best.gamma * sigma2;
   const covariance = best.xhxInverse.map((row) => row.map((v) => v * sigma2));
   const residualDf = N - p;
-  const satterthwaite = separable ? satterthwaiteState(g, sigma2, sigmaB2, covariance) : null;
+  const satterthwaite = separable ? satterthwaiteState(g, sigma2, sigmaB2, covariance, best.beta) : null;
   const dfMethod: DfMethod = separable ? "Satterthwaite" : "residual (one run per blade)";
   const fit: RandomInterceptFit = {
     method: "linear mixed model, blade random intercept, REML",

@@ -162,6 +162,40 @@ suite("a covariate with one run per blade is the classical analysis of covarianc
   });
 });
 
+suite("unbalanced replicates with a covariate, against R's lmerTest", () => {
+  // 12 blades with 1 to 3 runs each, three arms, blade hardness (invented numbers, generated once).
+  const rows: [string, string, number, number][] = [["b1", "A", 62, 54], ["b2", "B", 64, 59], ["b2", "B", 64, 61], ["b3", "C", 58, 54], ["b3", "C", 58, 53], ["b3", "C", 58, 54], ["b4", "A", 62, 53], ["b4", "A", 62, 52], ["b5", "B", 59, 50], ["b6", "C", 64, 62], ["b6", "C", 64, 62], ["b6", "C", 64, 61], ["b7", "A", 59, 50], ["b7", "A", 59, 52], ["b8", "B", 60, 54], ["b8", "B", 60, 58], ["b9", "C", 61, 52], ["b9", "C", 61, 54], ["b9", "C", 61, 51], ["b10", "A", 62, 56], ["b11", "B", 61, 54], ["b11", "B", 61, 54], ["b12", "C", 58, 52], ["b12", "C", 58, 48], ["b12", "C", 58, 52]];
+  const runs: ModelRun[] = rows.map(([bladeId, arm, hardness, value]) => ({ bladeId, arm, value, covariates: { hardness } }));
+  const r = fitBladeModel(runs, { reference: "A", covariates: ["hardness"] });
+  it("estimates, SE, Satterthwaite df, variance components and the F test of arms", () => {
+    // Source: R 4.2.2 with lmerTest 3.1-3 (Debian packages r-base-core, r-cran-lmertest), run once on these rows:
+    //   d$hc <- d$hardness - mean(d$hardness); m <- lmer(y ~ arm + hc + (1 | blade), d, REML = TRUE)
+    //   summary(m)$coefficients; as.data.frame(VarCorr(m)); anova(m, ddf = "Satterthwaite")
+    const expected = [
+      ["(intercept)", 52.554701359, 1.190702383, 9.514463545, 2.495152842e-12],
+      ["arm: B − A", 2.137012154, 1.651036571, 9.236437868, 2.269689444e-1],
+      ["arm: C − A", 2.709665161, 1.633718048, 8.266888432, 1.345629871e-1],
+      ["covariate: hardness", 1.449006779, 0.33086087, 7.832348067, 2.472800335e-3],
+    ] as const;
+    expected.forEach(([name, estimate, se, df, p], i) => {
+      const c = r.fit.coefficients[i];
+      expect(c.name).toBe(name);
+      expectRel(c.estimate, estimate, 1e-8);
+      expectRel(c.se, se, 1e-7);
+      expectRel(c.df, df, 1e-6);
+      expectRel(c.p, p, 1e-6);
+    });
+    expectRel(r.variance.betweenBlades!, 3.990061571, 1e-7);
+    expectRel(r.variance.withinBlade, 2.190366822, 1e-7);
+    expectRel(r.armTest!.F, 1.50303, 1e-5);
+    expectRel(r.armTest!.denominatorDf, 8.479986762, 1e-6);
+    expectRel(r.armTest!.p, 0.2762319, 1e-6);
+    expect(r.fit.satterthwaite!.information).toBe("observed");
+    expect(r.nBlades).toBe(12);
+    expect(r.nRuns).toBe(25);
+  });
+});
+
 suite("the F test of arms against jstat's one-way ANOVA", () => {
   it("balanced replicates: the arm F test equals the ANOVA of blade means, on (k - 1, m - k) df", () => {
     const runs = simulate("anova-3", { bladesPerArm: 6, replicates: 3, arms: ["A", "B", "C"], effect: 2, sdBlade: 3, sdRun: 1 });
