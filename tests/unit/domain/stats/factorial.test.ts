@@ -50,6 +50,36 @@ suite("two-factor study with replicate runs per blade", () => {
   });
 });
 
+suite("an unbalanced factorial with replicates, against R's lmerTest", () => {
+  it("type III F tests with Satterthwaite denominator df and the variance components", () => {
+    // The battery data with every seventh unit left out and a second (invented) run for every third unit;
+    // the same rows are in fixtures/unbalanced-factorial.csv.
+    const rows: FactorialRun[] = [];
+    let unit = 0;
+    for (const m of ["1", "2", "3"]) temperatures.forEach((t, i) => battery[m][i].forEach((value) => {
+      unit += 1;
+      if (unit % 7 === 3) return;
+      rows.push({ bladeId: `u${unit}`, value, cell: { material: m, temperature: t } });
+      if (unit % 3 === 0) rows.push({ bladeId: `u${unit}`, value: value + ((unit * 13) % 21) - 10, cell: { material: m, temperature: t } });
+    }));
+    const r = fitFactorialModel(rows, factors);
+    // Source: R 4.2.2, lmerTest 3.1-3 (fixtures/lmer-check.R): lmer(y ~ material * temperature + (1 | blade)) with
+    // contr.sum, anova(type = 3): F 5.66895, 34.84090, 4.07823 on 2, 2, 4 and 22.00151296, 22.00280169,
+    // 22.00217233 df; variances 578.1298763 (blade) and 12.0475163 (residual), lme4's optimiser to about 1e-6.
+    const expected = [[5.66895, 2, 22.00151296, 0.010335], [34.8409, 2, 22.00280169, 1.5175e-7], [4.07823, 4, 22.00217233, 0.012718]];
+    r.tests.forEach((t, i) => {
+      expectRel(t.F, expected[i][0], 1e-5);
+      expect(t.numeratorDf).toBe(expected[i][1]);
+      expectRel(t.denominatorDf, expected[i][2], 1e-5);
+      expectRel(t.p, expected[i][3], 1e-4);
+    });
+    expectRel(r.variance.betweenBlades!, 578.1298763, 1e-5);
+    expectRel(r.variance.withinBlade, 12.0475163, 1e-5);
+    expect(r.nBlades).toBe(31);
+    expect(r.nRuns).toBe(41);
+  });
+});
+
 suite("bad factorial input", () => {
   it("a cell without blades is named", () => {
     const gap = runs.filter((x) => !(x.cell.material === "2" && x.cell.temperature === "70"));
