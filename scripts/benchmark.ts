@@ -8,6 +8,7 @@ import os from "node:os";
 import path from "node:path";
 import { performance } from "node:perf_hooks";
 import { timeAnalysis, type Timing } from "./bench-analysis.ts";
+import { mixedModelSection, timeMixedModels, type MixedModelTiming } from "./bench-models.ts";
 import { AppServer, buildIfMissing, cluster, dropDatabase, freePort, freshDatabase, ROOT, scratchDir, startFakes, withClient } from "./benchmark/services.ts";
 import { firstLoad, gzipSizeOf, vegaChunks, type FirstLoad } from "./benchmark/client-weight.ts";
 import { expectPage, signInAll } from "./benchmark/http.ts";
@@ -61,6 +62,7 @@ for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => vo
 
 type Results = {
   analysis: { small: Timing; large: Timing };
+  mixedModel: MixedModelTiming[];
   weight: { minimal: FirstLoad; landing: FirstLoad; bench: FirstLoad; results: FirstLoad; vegaGzip: number; vegaChunks: number };
   postgres: { version: string; fsync: string; synchronousCommit: string; sharedBuffers: string; startedHere: boolean };
   seeded: Seeded;
@@ -80,6 +82,8 @@ async function main(): Promise<Results> {
   log("analysis core: 72,000 readings and 10×, 5 repetitions each");
   const small = timeAnalysis({ blades: 200, repetitions: REPETITIONS, label: "200 blades × 3 replicates × 40 checks × 3 positions" });
   const large = timeAnalysis({ blades: 2000, repetitions: REPETITIONS, label: "2,000 blades (10×)" });
+  log("mixed model: 600 runs and 10×");
+  const mixedModel = timeMixedModels();
 
   // 2. Services.
   log("PostgreSQL, a fresh benchmark database, the build, the local fakes");
@@ -190,7 +194,7 @@ async function main(): Promise<Results> {
   } finally {
     await setStatementLogging(databaseUrl, DATABASE, false);
   }
-  return { analysis: { small, large }, weight, postgres, seeded, seedSeconds, rounds, afterRounds, crash, afterCrash, pgbench, pages, queries, runReadings: testers[0].acked.size };
+  return { analysis: { small, large }, mixedModel, weight, postgres, seeded, seedSeconds, rounds, afterRounds, crash, afterCrash, pgbench, pages, queries, runReadings: testers[0].acked.size };
 }
 
 // ---------- the report ----------
@@ -325,6 +329,8 @@ function report(r: Results): { markdown: string; table: string } {
     "",
     `Seeded in ${num(r.seedSeconds)} s through the app's own server modules (protocol publishing, randomization, starting, the seeded simulator for finished runs, closing with the blinded snapshot, starting runs at the bench): ${s.testerEmails.length} testers, an analyst, a lead and an owner; a rope protocol (a check after every cut at three positions, cap 60 cuts); a closed study of ${s.counts.closedLargeRuns} runs and ${num(s.counts.closedLargeReadings)} readings and a closed study of 4 runs; a running study of ${s.counts.runningLargeRuns} runs (${s.counts.runningLargeFinished} finished, one run in progress per tester) and a running study of 4 runs. ${num(s.counts.readings)} readings before the load. All names and numbers are invented.`,
     "",
+    mixedModelSection(r.mixedModel, when),
+    "",
     "## Commands",
     "",
     "```",
@@ -334,6 +340,7 @@ function report(r: Results): { markdown: string; table: string } {
     "BLINDCUT_BENCH_KEEP_DB=1 npm run benchmark   # keep the blindcut_bench database afterwards",
     "BLINDCUT_BENCH_PAGE_SECONDS=10 npm run benchmark   # the issue's 10 s per page measurement",
     "npx tsx scripts/bench-analysis.ts        # the analysis core alone",
+    "npx tsx scripts/bench-models.ts          # the mixed model alone; rewrites only its section here",
     "```",
     "",
     "## Findings",

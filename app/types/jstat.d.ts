@@ -19,6 +19,11 @@ declare module "jstat" {
     ibeta(x: number, a: number, b: number): number;
     /** Natural log of the gamma function. */
     gammaln(x: number): number;
+    /** One-way ANOVA F statistic of the groups (used by tests as an independent check). */
+    anovafscore(...groups: number[][]): number;
+    /** p-value of the one-way ANOVA F test of the groups. */
+    anovaftest(...groups: number[][]): number;
+    centralF: { cdf(x: number, df1: number, df2: number): number };
   }
   const jStat: JStatStatic;
   export default jStat;
