@@ -98,7 +98,7 @@ export function parseReadingsCsv(text: string, mapping: CsvMapping, defaultPosit
     else {
       // Hundreds of digits parse to Infinity or to a value no instrument reads: refused here,
       // and every value is range-checked against the instrument when the rows meet the run.
-      value = mapping.unit === "mm" ? parsedValue : roundReading(toGramsForce(parsedValue, mapping.unit));
+      value = !Number.isFinite(parsedValue) ? NaN : mapping.unit === "mm" ? parsedValue : roundReading(toGramsForce(parsedValue, mapping.unit));
       if (!Number.isFinite(value) || value > MAX_CSV_VALUE) {
         rowErrors.push({ row, column: mapping.value, message: `"${shown}" is beyond any instrument's range` });
         value = NaN;
