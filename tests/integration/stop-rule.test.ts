@@ -23,7 +23,7 @@ type Bench = { f: StudyFixture; lotId: string; instrumentId: string };
 async function benchFor(f: StudyFixture, kind: "sharpness_tester" | "card_machine", maxReading: number | null): Promise<Bench> {
   const medium = await createMedium(f.labId, f.lead.id, { name: "Fixture rope", kind: "rope", material: "manila", sizeMm: 10, notes: "" });
   const lot = await createLot(f.labId, f.lead.id, medium.id, { lotCode: "LOT-1", receivedOn: "2024-01-10", conditioning: "" });
-  const instrument = await createInstrument(f.labId, f.lead.id, { name: `Instrument ${kind}`, kind, testMedium: "test wire", resolution: 1, maxReading, calibrationIntervalDays: 365 });
+  const instrument = await createInstrument(f.labId, f.lead.id, { name: `Instrument ${kind}`, kind, testMedium: "test wire", resolution: 1, maxReading: maxReading ?? undefined, calibrationIntervalDays: 365 });
   return { f, lotId: lot.id, instrumentId: instrument.id };
 }
 
