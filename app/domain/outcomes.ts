@@ -182,8 +182,8 @@ export function aggregateCheck(values: readonly number[], aggregation: "mean" | 
  * @returns the decision and the complete checks so far
  * @throws Error on an invalid protocol; a non-finite or negative value; a cut not in the
  *   schedule; an unknown position; two current readings for the same cut and position
- *   (or two confirmations at one cut); readings after an incomplete check or after the
- *   run ended; a confirmation at the baseline
+ *   (or two confirmations at one cut); readings after an incomplete check, after a check
+ *   that waits for its confirmation, or after the run ended; a confirmation at the baseline
  */
 export function decideRunState(protocol: ForceProtocol, readings: readonly ForceReading[]): RunState {
   const schedule = checkSchedule(protocol);
@@ -235,6 +235,10 @@ export function decideRunState(protocol: ForceProtocol, readings: readonly Force
     if (status === "awaiting-check" && nextCut !== null && lastReadCut > nextCut) {
       throw new Error(`readings at cut ${lastReadCut} come after the incomplete check at cut ${nextCut}`);
     }
+    // A pending confirmation is the only reading the rule can take next (item of the stop rule, not of the bench).
+    if (status === "needs-confirmation" && nextCut !== null && lastReadCut > nextCut) {
+      throw new Error(`readings at cut ${lastReadCut} come after the check at cut ${nextCut}, which waits for its confirmation`);
+    }
     return {
       status,
       needsConfirmation: status === "needs-confirmation",
@@ -278,6 +282,143 @@ export function decideRunState(protocol: ForceProtocol, readings: readonly Force
   }
   /* c8 ignore next */
   throw new Error("decideRunState: schedule ended without a decision");
+}
+
+// ---------------------------------------------------------------------------
+// Admitting a reading: the stop rule as a gate, for every path that writes readings
+// ---------------------------------------------------------------------------
+
+/**
+ * Why a reading cannot join a run. `invalid`: no run under this protocol could take it
+ * (off the schedule, an unknown position, out of the instrument's range); `conflict`:
+ * it clashes with what the run holds or where the stop rule stands.
+ */
+export class ReadingRefused extends Error {
+  constructor(message: string, readonly reason: "invalid" | "conflict") {
+    super(message);
+  }
+}
+
+/** What a reading's value may be: finite, from 0 to the instrument's maximum, in one unit. */
+export interface ReadingRange {
+  max: number;
+  unit: "gf" | "mm";
+  /** Whose maximum it is, for the message ("the sharpness tester's", "the card machine's"). */
+  instrument: string;
+}
+
+/**
+ * The one range check of a reading's value, for new readings, confirmations and corrections alike.
+ * @throws ReadingRefused (invalid) on a non-finite, negative or too large value
+ */
+export function checkReadingValue(value: number, range: ReadingRange): void {
+  if (typeof value !== "number" || !Number.isFinite(value)) throw new ReadingRefused("The value must be a finite number.", "invalid");
+  if (value < 0) throw new ReadingRefused("A reading cannot be negative.", "invalid");
+  if (value > range.max) {
+    throw new ReadingRefused(`${value} ${range.unit} is above ${range.instrument} maximum of ${range.max} ${range.unit}: check the reading.`, "invalid");
+  }
+}
+
+/** A reading offered to a run: new (no `supersedes`) or a correction of a current reading. */
+export type ReadingCandidate = ForceReading & { id: string };
+
+/**
+ * Checks that a correction keeps what places the reading in the run: its cut, position
+ * and kind. Only the value (with a reason) can be corrected.
+ * @throws ReadingRefused naming what the correction tried to change
+ */
+function checkCorrectionKeepsPlace(readings: readonly ForceReading[], candidate: ForceReading): void {
+  const original = readings.find((r) => r.id !== undefined && r.id === candidate.supersedes);
+  if (!original) throw new ReadingRefused("The reading to correct is not among the run's readings.", "invalid");
+  const changed = (["cut", "position", "kind"] as const).filter((k) => original[k] !== candidate[k]);
+  if (changed.length) {
+    throw new ReadingRefused(`A correction changes only the value: it keeps the reading's cut, position and kind (it tried to change the ${changed.join(" and ")}).`, "invalid");
+  }
+}
+
+/**
+ * The gate of the stop rule: whether a reading may join an edge-force run's readings
+ * (one attempt). A new reading must be the one the rule asks for next: while a check is
+ * incomplete, a missing position of that check (no cut beyond it); while a check at or
+ * above T waits for its confirmation, that confirmation and nothing else; after the end,
+ * nothing. A correction keeps the cut, position and kind of the reading it supersedes,
+ * and the readings with it must still fit the rule. Every value is range-checked.
+ * Applied to readings one by one, the accepted ones are always in the rule's order, so
+ * the run ends exactly where decideRunState applied to them ends it.
+ * @param readings the attempt's stored readings, in entry order (as admitted before)
+ * @returns the stop rule's decision with the candidate included
+ * @throws ReadingRefused with the reason in words; Error when the protocol is invalid
+ */
+export function admitForceReading(protocol: ForceProtocol, readings: readonly ForceReading[], candidate: ReadingCandidate, range: ReadingRange): RunState {
+  checkReadingValue(candidate.value, range);
+  const schedule = checkSchedule(protocol);
+  const fits = (rows: readonly ForceReading[]) => {
+    try {
+      return decideRunState(protocol, rows);
+    } catch (error) {
+      throw new ReadingRefused(`That reading does not fit the run: ${error instanceof Error ? error.message.replace(/^reading [^:]+: /, "") : "the stop rule refused it"}`, "conflict");
+    }
+  };
+  const before = fits(readings);
+  if (!before.continue) throw new ReadingRefused(`The run has ended (${before.status.replace(/-/g, " ")}${before.endCut !== null ? ` at cut ${before.endCut}` : ""}): no more readings.`, "conflict");
+  if (candidate.supersedes !== undefined && candidate.supersedes !== null) {
+    checkCorrectionKeepsPlace(readings, candidate);
+    return fits([...readings, candidate]);
+  }
+  const { cut, position, kind } = candidate;
+  if (!Number.isInteger(cut) || !schedule.includes(cut)) {
+    throw new ReadingRefused(`Cut ${cut} is not a check: checks are at 0 (baseline), every ${protocol.checkEvery} cut${protocol.checkEvery === 1 ? "" : "s"} and at the cap (${protocol.cap}).`, "invalid");
+  }
+  const current = resolveCorrections(readings);
+  if (kind === "check") {
+    if (!protocol.positions.includes(position)) throw new ReadingRefused(`"${position}" is not one of this protocol's positions (${protocol.positions.join(", ")}).`, "invalid");
+    if (current.some((r) => r.kind === "check" && r.cut === cut && r.position === position)) {
+      throw new ReadingRefused(`The ${position} reading at cut ${cut} is already saved: correct it instead.`, "conflict");
+    }
+  } else if (kind === "confirmation") {
+    if (!protocol.confirm) throw new ReadingRefused("This protocol takes no confirmation reading.", "invalid");
+    if (cut === 0) throw new ReadingRefused("No confirmation reading is taken at the baseline.", "invalid");
+    if (current.some((r) => r.kind === "confirmation" && r.cut === cut)) throw new ReadingRefused(`The confirmation at cut ${cut} is already saved: correct it instead.`, "conflict");
+  } else {
+    throw new ReadingRefused(`The kind is check or confirmation, not ${String(kind)}.`, "invalid");
+  }
+  if (before.status === "needs-confirmation") {
+    if (kind !== "confirmation" || cut !== before.nextCut) {
+      throw new ReadingRefused(`The check at cut ${before.nextCut} is at or above the threshold: the only reading the run takes now is its confirmation at a fresh spot (cut ${before.nextCut}).`, "conflict");
+    }
+  } else if (kind === "confirmation") {
+    throw new ReadingRefused(`No confirmation is due at cut ${cut}: a confirmation is taken only after a check at or above the threshold. The run waits for the check at cut ${before.nextCut}.`, "conflict");
+  } else if (cut !== before.nextCut) {
+    throw new ReadingRefused(`The run waits for the check at cut ${before.nextCut} (${before.missingPositions.join(", ")}): a reading at cut ${cut} cannot come before it is complete.`, "conflict");
+  }
+  return fits([...readings, candidate]);
+}
+
+/**
+ * The gate of a card-depth run: strokes are recorded in order, one depth each (the next
+ * stroke without a depth, none beyond it), as check readings at the given position; a
+ * correction keeps its stroke; every depth is range-checked.
+ * @param readings the attempt's stored readings (cut = stroke)
+ * @throws ReadingRefused with the reason in words
+ */
+export function admitCardReading(strokeCount: number, position: string, readings: readonly ForceReading[], candidate: ReadingCandidate, range: ReadingRange): void {
+  checkReadingValue(candidate.value, range);
+  if (candidate.kind !== "check") throw new ReadingRefused("A card-depth run takes one depth per stroke, no confirmation readings.", "invalid");
+  if (candidate.position !== position) throw new ReadingRefused(`A card-depth reading is stored at the position "${position}".`, "invalid");
+  if (!Number.isInteger(candidate.cut) || candidate.cut < 1 || candidate.cut > strokeCount) {
+    throw new ReadingRefused(`Stroke ${candidate.cut} is outside 1 to ${strokeCount}.`, "invalid");
+  }
+  const current = resolveCorrections(readings);
+  const recorded = new Set(current.map((r) => r.cut));
+  let next = 1;
+  while (recorded.has(next)) next++;
+  if (candidate.supersedes !== undefined && candidate.supersedes !== null) {
+    checkCorrectionKeepsPlace(readings, candidate);
+    return;
+  }
+  if (next > strokeCount) throw new ReadingRefused(`All ${strokeCount} strokes are recorded: the run has ended.`, "conflict");
+  if (recorded.has(candidate.cut)) throw new ReadingRefused(`Stroke ${candidate.cut} already has a depth: correct it instead.`, "conflict");
+  if (candidate.cut !== next) throw new ReadingRefused(`The run waits for stroke ${next}: a depth for stroke ${candidate.cut} cannot come before it.`, "conflict");
 }
 
 // ---------------------------------------------------------------------------

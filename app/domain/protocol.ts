@@ -101,9 +101,10 @@ export const EdgeForceSchema = z.object({
     .min(1, "Add at least one reading position along the edge (e.g. middle)")
     .max(12, "Use at most 12 reading positions"),
   aggregation: z.enum(["mean", "median"], { error: "Choose mean or median" }),
-  thresholdGf: num("the threshold", { minExclusive: 0, unit: "gf" }),
+  // A sharpness tester reads up to a few thousand gf; 100,000 gf (about 1 kN) is beyond any (from memory).
+  thresholdGf: num("the threshold", { minExclusive: 0, max: 100_000, unit: "gf" }),
   confirmAtFreshSpot: yesNo,
-  testerMaxGf: num("the sharpness tester's maximum reading", { minExclusive: 0, unit: "gf" }),
+  testerMaxGf: num("the sharpness tester's maximum reading", { minExclusive: 0, max: 100_000, unit: "gf" }),
   capCuts: num("the cap on cuts", { int: true, min: 1, max: 100000, unit: "cuts" }),
 });
 export type EdgeForceSettings = z.infer<typeof EdgeForceSchema>;
@@ -111,8 +112,8 @@ export type EdgeForceSettings = z.infer<typeof EdgeForceSchema>;
 export const CardSettingsSchema = z.object({
   strokeCount: num("the stroke count", { int: true, min: 1, max: 10000, unit: "strokes" }),
   initialStrokes: num("the strokes for initial cutting performance", { int: true, min: 1, max: 10000, unit: "strokes" }),
-  initialPassMm: num("the pass mark for initial cutting performance", { minExclusive: 0, unit: "mm" }),
-  totalPassMm: num("the pass mark for total card cut", { minExclusive: 0, unit: "mm" }),
+  initialPassMm: num("the pass mark for initial cutting performance", { minExclusive: 0, max: 100_000, unit: "mm" }),
+  totalPassMm: num("the pass mark for total card cut", { minExclusive: 0, max: 100_000, unit: "mm" }),
   /** Where the card values come from: `from_memory` until checked against the standard's text. */
   valuesSource: z.enum(["from_memory", "checked"], { error: "Say whether the values were checked against the standard" }),
 });

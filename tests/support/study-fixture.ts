@@ -24,7 +24,7 @@ export function identityStrings(tag: string) {
   };
 }
 
-export async function createStudyFixture(options: { state?: "draft" | "randomized" | "running"; testers?: number; replicates?: number; cap?: number; checkEvery?: number; tag?: string } = {}) {
+export async function createStudyFixture(options: { state?: "draft" | "randomized" | "running"; testers?: number; replicates?: number; cap?: number; checkEvery?: number; tag?: string; template?: "rope" | "card"; strokes?: number } = {}) {
   const tag = options.tag ?? Math.random().toString(36).slice(2, 8).toUpperCase();
   const ids = identityStrings(tag);
   const owner = await signUp("Fixture Owner");
@@ -38,11 +38,17 @@ export async function createStudyFixture(options: { state?: "draft" | "randomize
   const testerIds = await Promise.all(testerClients.map((t) => userId(t.email)));
 
   const result = await db().transaction(async (tx) => {
-    const { protocol } = await createProtocolTx(tx, { id: leadId }, labId, { template: "rope", name: `Short rope test ${tag}` });
-    const content = templateContent("rope", `Short rope test ${tag}`);
+    const template = options.template ?? "rope";
+    const { protocol } = await createProtocolTx(tx, { id: leadId }, labId, { template, name: `Short ${template} test ${tag}` });
+    const content = templateContent(template, `Short ${template} test ${tag}`);
     content.replicatesPerBlade = options.replicates ?? 1;
-    content.edgeForce!.checkEveryCuts = options.checkEvery ?? 2;
-    content.edgeForce!.capCuts = options.cap ?? 6;
+    if (content.edgeForce) {
+      content.edgeForce.checkEveryCuts = options.checkEvery ?? 2;
+      content.edgeForce.capCuts = options.cap ?? 6;
+    } else {
+      content.card!.strokeCount = options.strokes ?? 5;
+      content.card!.initialStrokes = Math.min(3, content.card!.strokeCount);
+    }
     await saveDraftTx(tx, labId, protocol.id, 1, content);
     const version = await publishVersionTx(tx, { id: leadId }, labId, protocol.id, 1);
 

@@ -29,6 +29,8 @@ export type CsvParse = { headers: string[]; rows: CsvRow[]; errors: CsvRowError[
 export const BLINDCUT_FORCE_LAYOUT: CsvMapping = { cut: "cut", position: "position", kind: "kind", value: "value_gf", unit: "gf" };
 export const BLINDCUT_CARD_LAYOUT: CsvMapping = { cut: "stroke", position: null, kind: null, value: "depth_mm", unit: "mm" };
 export const MAX_CSV_ROWS = 5000;
+/** No reading of either kind comes near this (gf or mm); the instrument's own range is checked later. */
+export const MAX_CSV_VALUE = 100_000;
 
 const clean = (h: string) => h.replace(/^\uFEFF/, "").trim().toLowerCase();
 
@@ -90,9 +92,18 @@ export function parseReadingsCsv(text: string, mapping: CsvMapping, defaultPosit
     const valueRaw = record[clean(mapping.value)] ?? "";
     const parsedValue = parseDecimal(valueRaw);
     let value = NaN;
-    if (parsedValue === null) rowErrors.push({ row, column: mapping.value, message: `"${valueRaw.trim()}" is not a number` });
+    const shown = valueRaw.trim().length > 24 ? `${valueRaw.trim().slice(0, 20)}…` : valueRaw.trim();
+    if (parsedValue === null) rowErrors.push({ row, column: mapping.value, message: `"${shown}" is not a number` });
     else if (parsedValue < 0) rowErrors.push({ row, column: mapping.value, message: "A reading cannot be negative" });
-    else value = mapping.unit === "mm" ? parsedValue : roundReading(toGramsForce(parsedValue, mapping.unit));
+    else {
+      // Hundreds of digits parse to Infinity or to a value no instrument reads: refused here,
+      // and every value is range-checked against the instrument when the rows meet the run.
+      value = !Number.isFinite(parsedValue) ? NaN : mapping.unit === "mm" ? parsedValue : roundReading(toGramsForce(parsedValue, mapping.unit));
+      if (!Number.isFinite(value) || value > MAX_CSV_VALUE) {
+        rowErrors.push({ row, column: mapping.value, message: `"${shown}" is beyond any instrument's range` });
+        value = NaN;
+      }
+    }
     if (rowErrors.length) errors.push(...rowErrors);
     else rows.push({ row, cut, position, kind, value });
   });

@@ -2,11 +2,10 @@
  * Where a run stands at the bench, from the readings saved so far.
  *
  * The stop rule itself is `decideRunState` in ../outcomes.ts (one module for the bench
- * and the analysis); this file only chooses which readings it is applied to. At the
- * bench readings can arrive out of order (a retried save lands after a later one), so
- * the rule is applied to the longest run of checks that is in order: a check's readings
- * count once every earlier check is complete (and, above the threshold, confirmed).
- * Readings past that point are "ahead": kept, and counted as soon as the gap is filled.
+ * and the analysis); this file only chooses which readings it is applied to. The server
+ * stores only the reading the rule asks for next (admitForceReading), so stored readings
+ * are in order; the rule is still applied to the longest run of checks that is in order,
+ * so that readings stored before that gate existed past an incomplete check show as "ahead".
  */
 import { checkSchedule, decideRunState, resolveCorrections, type ForceProtocol, type ForceReading, type RunState } from "../outcomes.ts";
 

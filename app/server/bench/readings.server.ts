@@ -1,15 +1,15 @@
 // Saving readings at the bench: once per idempotency key, in one transaction with the
 // run's state (the run row locked), and the stop rule applied by the server after each.
-import { and, asc, eq } from "drizzle-orm";
+import { and, asc, eq, sql } from "drizzle-orm";
 import { z } from "zod";
 import { createHash } from "node:crypto";
 import { db, type Transaction } from "../db.server.ts";
 import { readings, runEvents, runs } from "../db/schema/index.ts";
 import { recordAudit } from "../audit.server.ts";
 import { BenchError } from "./api.server.ts";
-import { benchProtocol, decisionOf, lockRun, readingColumns, readingJson, refusalForReadings, runStateJson, type LockedRun, type ReadingRow } from "./runs.server.ts";
-import { readingContentHash } from "~/domain/reading-hash.ts";
-import { checkSchedule } from "~/domain/outcomes.ts";
+import { benchProtocol, decisionOf, lockRun, readingColumns, readingJson, readingRange, refusalForReadings, runStateJson, toBenchReading, type LockedRun, type ReadingRow } from "./runs.server.ts";
+import { nextLink, readingContentHash } from "~/domain/reading-hash.ts";
+import { admitCardReading, admitForceReading, ReadingRefused } from "~/domain/outcomes.ts";
 import { CARD_POSITION, type RunDecision } from "~/domain/bench/run-progress.ts";
 import { BLINDCUT_CARD_LAYOUT, BLINDCUT_FORCE_LAYOUT, parseReadingsCsv, type CsvMapping, type CsvRowError } from "~/domain/bench/readings-csv.ts";
 
@@ -29,6 +29,10 @@ export const CorrectionInput = z.object({
   idempotencyKey: key,
   readingId: z.string().uuid("Name the reading to correct"),
   value: ReadingInput.shape.value,
+  // Sent only by a client that means to move the reading: the stop rule's gate refuses any change.
+  cut: ReadingInput.shape.cut.optional(),
+  position: ReadingInput.shape.position.optional(),
+  kind: z.enum(["check", "confirmation"], { error: "The kind is check or confirmation" }).optional(),
   reason: z.string({ error: "Give a reason for the correction" }).trim().min(3, "Give a reason for the correction (at least 3 characters)").max(1000, "At most 1000 characters"),
 });
 
@@ -36,32 +40,21 @@ async function attemptReadings(tx: Transaction, runId: string) {
   return (await tx.select(readingColumns).from(readings).where(eq(readings.runId, runId)).orderBy(asc(readings.enteredAt), asc(readings.id))) as ReadingRow[];
 }
 
-/** The checks a candidate reading must pass before the stop rule sees it, in words a tester can act on. */
-function checkCandidate(run: LockedRun, current: readonly ReadingRow[], c: { cut: number; position: string; kind: "check" | "confirmation"; value: number }) {
+/**
+ * The stop rule's gate for a reading (new or a correction), through the core's one
+ * admission function; its refusal becomes the bench's: 400 where no run of this protocol
+ * could take the reading, 409 where it clashes with where the run stands.
+ */
+function admit(run: LockedRun, rows: readonly ReadingRow[], candidate: { id: string; cut: number; position: string; kind: "check" | "confirmation"; value: number; supersedesId: string | null }) {
   const p = benchProtocol(run.content);
-  const superseded = new Set(current.map((r) => r.supersedesId).filter(Boolean));
-  const live = current.filter((r) => r.attempt === run.attempt && !superseded.has(r.id));
-  if (p.kind === "card_depth") {
-    if (c.kind !== "check") throw new BenchError("A card-depth run takes one depth per stroke, no confirmation readings.");
-    if (c.position !== CARD_POSITION) throw new BenchError(`A card-depth reading is stored at the position "${CARD_POSITION}".`);
-    if (c.cut < 1 || c.cut > p.strokeCount) throw new BenchError(`Stroke ${c.cut} is outside 1 to ${p.strokeCount}.`);
-    if (live.some((r) => r.cut === c.cut)) throw new BenchError(`Stroke ${c.cut} already has a depth: correct it instead.`, 409);
-    return;
-  }
-  const f = p.force;
-  if (c.value > p.testerMaxGf) throw new BenchError(`${c.value} gf is above the sharpness tester's maximum of ${p.testerMaxGf} gf: check the reading.`);
-  if (c.cut > f.cap || !checkSchedule(f).includes(c.cut)) {
-    throw new BenchError(`Cut ${c.cut} is not a check: checks are at 0 (baseline), every ${f.checkEvery} cut${f.checkEvery === 1 ? "" : "s"} and at the cap (${f.cap}).`);
-  }
-  if (c.kind === "check") {
-    if (!f.positions.includes(c.position)) throw new BenchError(`"${c.position}" is not one of this protocol's positions (${f.positions.join(", ")}).`);
-    if (live.some((r) => r.kind === "check" && r.cut === c.cut && r.position === c.position)) {
-      throw new BenchError(`The ${c.position} reading at cut ${c.cut} is already saved: correct it instead.`, 409);
-    }
-  } else {
-    if (!f.confirm) throw new BenchError("This protocol takes no confirmation reading.");
-    if (c.cut === 0) throw new BenchError("No confirmation reading is taken at the baseline.");
-    if (live.some((r) => r.kind === "confirmation" && r.cut === c.cut)) throw new BenchError(`The confirmation at cut ${c.cut} is already saved: correct it instead.`, 409);
+  const current = rows.filter((r) => r.attempt === run.attempt).map(toBenchReading);
+  const c = { id: candidate.id, cut: candidate.cut, position: candidate.position, kind: candidate.kind, value: candidate.value, supersedes: candidate.supersedesId };
+  try {
+    if (p.kind === "card_depth") admitCardReading(p.strokeCount, CARD_POSITION, current, c, readingRange(run));
+    else admitForceReading(p.force, current, c, readingRange(run));
+  } catch (error) {
+    if (error instanceof ReadingRefused) throw new BenchError(error.message, error.reason === "invalid" ? 400 : 409);
+    throw error;
   }
 }
 
@@ -126,7 +119,7 @@ export async function saveReading(ctx: SaveContext, input: ReadingInput) {
       throw new BenchError(`This reading belongs to attempt ${input.attempt}, which ended in a failed sharpening; the run is on attempt ${run.attempt}.`, 409);
     }
     const all = await attemptReadings(tx, ctx.runId);
-    checkCandidate(run, all, input);
+    admit(run, all, { id: "candidate", ...input, supersedesId: null });
     const row = await insertReading(tx, run, ctx.userId, { ...input, supersedesId: null, reason: null });
     const decision = decideWith(run, [...all, row]);
     await applyDecision(tx, run, decision, ctx.userId);
@@ -135,6 +128,12 @@ export async function saveReading(ctx: SaveContext, input: ReadingInput) {
   });
 }
 
+/**
+ * Inserts a reading as the next link of its run's chain and moves the run's chain head
+ * in the same statement (no extra round trip). The run is locked by the caller, and
+ * `run.readingCount` / `run.lastReadingHash` follow every insert, so a transaction that
+ * stores several readings (an import) chains them in order.
+ */
 async function insertReading(
   tx: Transaction,
   run: LockedRun,
@@ -143,24 +142,18 @@ async function insertReading(
 ): Promise<ReadingRow> {
   const id = crypto.randomUUID();
   const enteredAt = new Date();
-  const contentHash = readingContentHash({
-    id,
-    runId: run.id,
-    attempt: run.attempt,
-    cut: r.cut,
-    position: r.position,
-    kind: r.kind,
-    value: r.value,
-    supersedesId: r.supersedesId,
-    reason: r.reason,
-    enteredBy: userId,
-    enteredAt: enteredAt.toISOString(),
-  });
-  const [row] = await tx
+  const link = nextLink(run);
+  const contentHash = readingContentHash(
+    { id, runId: run.id, attempt: run.attempt, cut: r.cut, position: r.position, kind: r.kind, value: r.value, supersedesId: r.supersedesId, reason: r.reason, enteredBy: userId, enteredAt: enteredAt.toISOString() },
+    link,
+  );
+  const insert = tx
     .insert(readings)
-    .values({ id, labId: run.labId, runId: run.id, attempt: run.attempt, cut: r.cut, position: r.position, kind: r.kind, value: r.value, supersedesId: r.supersedesId, reason: r.reason, idempotencyKey: r.idempotencyKey, contentHash, enteredBy: userId, enteredAt })
-    .returning(readingColumns);
-  return row as ReadingRow;
+    .values({ id, labId: run.labId, runId: run.id, attempt: run.attempt, cut: r.cut, position: r.position, kind: r.kind, value: r.value, supersedesId: r.supersedesId, reason: r.reason, idempotencyKey: r.idempotencyKey, contentHash, runSeq: link.runSeq, prevHash: link.prevHash, enteredBy: userId, enteredAt });
+  await tx.execute(sql`WITH stored AS ${insert} UPDATE runs SET reading_count = ${link.runSeq}, last_reading_hash = ${contentHash} WHERE id = ${run.id}`);
+  run.readingCount = link.runSeq;
+  run.lastReadingHash = contentHash;
+  return { id, attempt: run.attempt, cut: r.cut, position: r.position, kind: r.kind, value: r.value, supersedesId: r.supersedesId, reason: r.reason, idempotencyKey: r.idempotencyKey, enteredAt };
 }
 
 /**
@@ -182,10 +175,8 @@ export async function correctReading(ctx: SaveContext, input: z.infer<typeof Cor
     if (!original) throw new BenchError("No such reading in this run.", 404);
     if (original.attempt !== run.attempt) throw new BenchError("Only readings of the current attempt can be corrected at the bench.", 409);
     if (all.some((r) => r.supersedesId === original.id)) throw new BenchError("This reading has been corrected already: correct the latest value instead.", 409);
-    if (original.kind === "check" && benchProtocol(run.content).kind === "edge_force") {
-      const max = (benchProtocol(run.content) as { testerMaxGf: number }).testerMaxGf;
-      if (input.value > max) throw new BenchError(`${input.value} gf is above the sharpness tester's maximum of ${max} gf.`);
-    }
+    const place = { cut: input.cut ?? original.cut, position: input.position ?? original.position, kind: input.kind ?? original.kind };
+    admit(run, all, { id: "candidate", ...place, value: input.value, supersedesId: original.id });
     const row = await insertReading(tx, run, ctx.userId, {
       idempotencyKey: input.idempotencyKey,
       cut: original.cut,
@@ -257,7 +248,7 @@ export async function importReadings(ctx: SaveContext, input: z.infer<typeof Imp
       for (const r of fresh) {
         try {
           if (decision?.ended) throw new BenchError(`The run ends before this row (${decision.message})`, 409);
-          checkCandidate(run, simulated, r);
+          admit(run, simulated, { id: "candidate", ...r, supersedesId: null });
           const candidate: ReadingRow = { id: crypto.randomUUID(), attempt: run.attempt, cut: r.cut, position: r.position, kind: r.kind, value: r.value, supersedesId: null, reason: null, idempotencyKey: `import:${fileHash}:${r.row}`, enteredAt: new Date() };
           decision = decideWith(run, [...simulated, candidate]);
           simulated.push(candidate);

@@ -12,6 +12,7 @@ import { BenchError } from "./api.server.ts";
 import { formatBlindCode, validateBlindCode } from "~/domain/blind-codes.ts";
 import { stopRuleInWords, stepInWords, toForceProtocol, type ProtocolContent } from "~/domain/protocol.ts";
 import { decideBenchRun, type BenchProtocol, type BenchReading, type RunDecision } from "~/domain/bench/run-progress.ts";
+import type { ReadingRange } from "~/domain/outcomes.ts";
 import type { RunState } from "../db/schema/studies.ts";
 
 export type RunChecklist = {
@@ -51,6 +52,28 @@ export function benchProtocol(content: ProtocolContent): BenchProtocol {
   return { kind: "card_depth", strokeCount: c.strokeCount, initialStrokes: c.initialStrokes, initialPassMm: c.initialPassMm, totalPassMm: c.totalPassMm };
 }
 
+/**
+ * Most depth of card one machine stroke can cut, mm, where the card machine states no
+ * maximum: well above any stroke of a card-test machine, far below a typing slip of a
+ * few digits (from memory: such machines cut stacks of card a few tens of mm deep).
+ */
+export const CARD_STROKE_MAX_MM = 100;
+
+/**
+ * The range every reading of the run is checked against (one place): the sharpness
+ * tester's maximum in the protocol, or the run's instrument's own maximum where it is lower;
+ * for card depth, the card machine's maximum or CARD_STROKE_MAX_MM.
+ */
+export function readingRange(run: { content: ProtocolContent; instrumentMax: number | null }): ReadingRange {
+  const p = benchProtocol(run.content);
+  const own = run.instrumentMax !== null && Number.isFinite(run.instrumentMax) && run.instrumentMax > 0 ? run.instrumentMax : null;
+  if (p.kind === "edge_force") {
+    if (own !== null && own < p.testerMaxGf) return { max: own, unit: "gf", instrument: "this run's sharpness tester's" };
+    return { max: p.testerMaxGf, unit: "gf", instrument: "the sharpness tester's" };
+  }
+  return { max: own ?? CARD_STROKE_MAX_MM, unit: "mm", instrument: own !== null ? "the card machine's" : "a card machine stroke's" };
+}
+
 const lockedRunColumns = {
   id: runs.id,
   labId: runs.labId,
@@ -60,6 +83,9 @@ const lockedRunColumns = {
   attempt: runs.attempt,
   schedulePosition: runs.schedulePosition,
   checklist: runs.checklist,
+  readingCount: runs.readingCount,
+  lastReadingHash: runs.lastReadingHash,
+  instrumentMax: instruments.maxReading,
   studyState: studies.state,
   preparerId: studies.preparerId,
   blindCode: studyBlades.blindCode,
@@ -74,6 +100,7 @@ export async function lockRun(tx: Transaction, labId: string, runId: string) {
     .innerJoin(studies, eq(studies.id, runs.studyId))
     .innerJoin(studyBlades, eq(studyBlades.id, runs.studyBladeId))
     .innerJoin(protocolVersions, eq(protocolVersions.id, studies.protocolVersionId))
+    .leftJoin(instruments, eq(instruments.id, runs.instrumentId))
     .where(and(eq(runs.id, runId), eq(runs.labId, labId)))
     .for("update", { of: runs });
   if (!run) throw new BenchError("No such run in this lab.", 404);

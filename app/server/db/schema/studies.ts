@@ -164,6 +164,10 @@ export const runs = pgTable(
     humidityPct: doublePrecision("humidity_pct"),
     checklist: jsonb("checklist").$type<Record<string, unknown>>(),
     endCut: doublePrecision("end_cut"),
+    // Head of the run's chain of readings: how many there are and the hash of the latest,
+    // so that a reading removed from the end is named too (see audit-verify).
+    readingCount: integer("reading_count").notNull().default(0),
+    lastReadingHash: text("last_reading_hash"),
     withdrawnReason: text("withdrawn_reason"),
     startedAt: timestamp("started_at", { withTimezone: true }),
     endedAt: timestamp("ended_at", { withTimezone: true }),
@@ -197,11 +201,17 @@ export const readings = pgTable(
     reason: text("reason"),
     idempotencyKey: text("idempotency_key").notNull(),
     contentHash: text("content_hash").notNull(),
+    // The run's chain: 1, 2, 3, ... in the order the readings were stored, and the hash of
+    // the one before (null for the first). Both are inside content_hash. Null for rows
+    // stored before readings were chained.
+    runSeq: integer("run_seq"),
+    prevHash: text("prev_hash"),
     enteredBy: uuid("entered_by").notNull().references(() => users.id, { onDelete: "restrict" }),
     enteredAt: timestamp("entered_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [
     uniqueIndex("readings_idempotency").on(t.runId, t.idempotencyKey),
+    uniqueIndex("readings_run_seq").on(t.runId, t.runSeq),
     index("readings_run").on(t.runId, t.attempt, t.cut),
     check("readings_correction_reason", sql`${t.supersedesId} IS NULL OR ${t.reason} IS NOT NULL`),
     check("readings_cut_nonnegative", sql`${t.cut} >= 0`),
