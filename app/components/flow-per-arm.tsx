@@ -64,7 +64,7 @@ export function FlowDiagram({ flow, enrolledBlades, design }: { flow: ArmFlowRow
   const allocated = design === "within_blade" ? "tested under" : "allocated to";
   return (
     <figure className="flex flex-col items-center gap-1 print:break-inside-avoid" data-testid="flow-diagram" aria-label="Flow diagram of blades and runs per arm">
-      <Box>Blades enrolled: {enrolledBlades}</Box>
+      <Box>{`Blades enrolled: ${enrolledBlades}`}</Box>
       <Arrow />
       <div className="grid w-full gap-3" style={{ gridTemplateColumns: `repeat(${flow.length}, minmax(0, 1fr))` }}>
         {flow.map((f) => (
@@ -72,25 +72,25 @@ export function FlowDiagram({ flow, enrolledBlades, design }: { flow: ArmFlowRow
             <Box>
               <strong>{armTitle(f.arm)}</strong>
               <br />
-              {f.bladesEnrolled} blades {allocated} it, {f.runsScheduled} runs scheduled
+              {`${f.bladesEnrolled} blades ${allocated} it, ${f.runsScheduled} runs scheduled`}
             </Box>
             <Arrow />
             <Box>
-              Runs completed: {f.endedAtThreshold + f.censored}
+              {`Runs completed: ${f.endedAtThreshold + f.censored}`}
               <br />
-              ended at threshold {f.endedAtThreshold}, censored at the cap {f.censored}
-              {f.failedSharpeningAttempts ? <><br />failed sharpening attempts {f.failedSharpeningAttempts}</> : null}
+              {`ended at threshold ${f.endedAtThreshold}, censored at the cap ${f.censored}`}
+              {f.failedSharpeningAttempts ? <><br />{`failed sharpening attempts ${f.failedSharpeningAttempts}`}</> : null}
             </Box>
-            {f.withdrawn ? <p className="text-center text-sm">Withdrawn {f.withdrawn} ({categories(f)})</p> : null}
+            {f.withdrawn ? <p className="text-center text-sm">{`Withdrawn ${f.withdrawn} (${categories(f)})`}</p> : null}
             <Arrow />
             <Box>
-              Analysed: {f.bladesAnalysed} blades, {f.runsAnalysed} runs
-              {f.excluded ? <><br />left out with no value {f.excluded}</> : null}
+              {`Analysed: ${f.bladesAnalysed} blades, ${f.runsAnalysed} runs`}
+              {f.excluded ? <><br />{`left out with no value ${f.excluded}`}</> : null}
             </Box>
           </div>
         ))}
       </div>
-      <figcaption className="mt-1 text-sm text-graphite-600">Flow of blades and runs, per {design === "within_blade" ? "condition" : "arm"}.</figcaption>
+      <figcaption className="mt-1 text-sm text-graphite-600">{`Flow of blades and runs, per ${design === "within_blade" ? "condition" : "arm"}.`}</figcaption>
     </figure>
   );
 }

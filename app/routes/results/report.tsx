@@ -91,7 +91,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
         </table>
         {view.flow.withdrawn.length ? (
           <ul className="mt-2 list-disc pl-6">
-            {view.flow.withdrawn.map((w) => <li key={w.runId}>Blade {w.bladeKey} ({w.armKey}): {reasonCategoryLabel(w.category)}</li>)}
+            {view.flow.withdrawn.map((w) => <li key={w.runId}>{`Blade ${w.bladeKey}${w.armKey ? ` (${w.armKey})` : ""}: ${reasonCategoryLabel(w.category)}${w.afterEnd ? ", after the run had ended" : ""}`}</li>)}
           </ul>
         ) : null}
         <h3 className="mt-3 font-bold">Per {study.design === "within_blade" ? "condition" : "arm"}</h3>
@@ -104,7 +104,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
         </p>
         {details.withdrawalNotes?.length ? (
           <ul className="mt-1 list-disc pl-6" data-testid="withdrawal-notes">
-            {details.withdrawalNotes.map((w) => <li key={w.run}>Run {w.run} (blade {w.bladeCode}), {reasonCategoryLabel(w.category)}: {w.note}</li>)}
+            {details.withdrawalNotes.map((w) => <li key={w.run}>{`Run ${w.run} (blade ${w.bladeCode}), ${reasonCategoryLabel(w.category)}: ${w.note}`}</li>)}
           </ul>
         ) : null}
       </Section>
@@ -113,7 +113,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
         {details.endedRunWithdrawals.length === 0 ? <p>None: no run was withdrawn after it had ended.</p> : (
           <ul className="list-disc pl-6" data-testid="ended-run-withdrawals">
             {details.endedRunWithdrawals.map((w) => (
-              <li key={w.run}>Run {w.run} (blade {w.bladeCode}) had {w.fromState === "censored" ? "reached the cap" : "ended at the threshold"}; withdrawn by an owner {day(w.at)}, {reasonCategoryLabel(w.category)}{w.note ? `: ${w.note}` : ""}</li>
+              <li key={w.run}>{`Run ${w.run} (blade ${w.bladeCode}) had ${w.fromState === "censored" ? "reached the cap" : "ended at the threshold"}; withdrawn by an owner ${day(w.at)}, ${reasonCategoryLabel(w.category)}${w.note ? `: ${w.note}` : ""}`}</li>
             ))}
           </ul>
         )}
