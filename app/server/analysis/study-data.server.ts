@@ -61,7 +61,7 @@ export function isLeadNote(event: { enteredBy: string | null }, run: { testerId:
 
 /** The note a reader of this study may see: a lead's note only once the study is unblinded. */
 export function visibleEventNote(study: { state: string }, event: { note: string; enteredBy: string | null }, run: { testerId: string }): string | null {
-  return study.state === "unblinded" || !isLeadNote(event, run) ? event.note : null;
+  return study.state === "unblinded" || event.note === "" || !isLeadNote(event, run) ? event.note : null;
 }
 
 /**
