@@ -8,9 +8,14 @@
 import { z } from "zod";
 import type { StudyAnalysisInput, PrimaryOutcome } from "./study-analysis.ts";
 import { PRIMARY_OUTCOMES } from "./study-analysis.ts";
+import { REASON_CATEGORY_KEYS } from "./reason-categories.ts";
 
 export const BUNDLE_FORMAT = "blindcut-study-bundle";
-export const BUNDLE_FORMAT_VERSION = 1;
+// 2: reason categories beside notes that are null until unblinding; seed source and earlier rolls.
+export const BUNDLE_FORMAT_VERSION = 2;
+
+const reasonCategory = z.enum(REASON_CATEGORY_KEYS);
+const runState = z.enum(["waiting", "in_progress", "ended_threshold", "censored", "withdrawn"]);
 
 const hash = z.string().regex(/^[0-9a-f]{64}$/, "a SHA-256 in hex");
 const isoTime = z.string().datetime({ offset: true });
@@ -23,9 +28,11 @@ export const BundleRunSchema = z.object({
   armLabel: z.string().min(1),
   replicate: z.number().int().min(1),
   bladeRunNumber: z.number().int().min(1),
-  state: z.enum(["waiting", "in_progress", "ended_threshold", "censored", "withdrawn"]),
+  state: runState,
   attempt: z.number().int().min(1),
-  withdrawnReason: z.string().nullable(),
+  withdrawnCategory: reasonCategory.nullable().describe("the withdrawal's reason category (what blinded readers see)"),
+  withdrawnNote: z.string().nullable().describe("the lead's free-text note: null while the study is blinded"),
+  withdrawnFromState: runState.nullable().describe("the run's state when it was withdrawn (ended_threshold or censored: an ended run)"),
   instrumentFlagged: z.boolean().nullable(),
 });
 
@@ -48,7 +55,9 @@ export const BundleEventSchema = z.object({
   attempt: z.number().int().min(1),
   cut: z.number().int().nullable(),
   kind: z.string(),
-  note: z.string(),
+  category: reasonCategory.nullable(),
+  note: z.string().nullable().describe("null when a lead's note is withheld while the study is blinded; testers' own notes always"),
+  noteWithheld: z.boolean(),
   enteredAt: isoTime,
 });
 
@@ -76,6 +85,8 @@ export const BundleRawSchema = z.object({
   }),
   randomization: z.object({
     seed: z.string(),
+    seedSource: z.enum(["server", "typed"]).nullable().describe("server: drawn by the server (cryptographic random); typed: given by the lead"),
+    earlierRolls: z.array(z.object({ rolledAt: isoTime, seedSource: z.enum(["server", "typed"]) })).describe("rolls before the final one, oldest first"),
     algorithmVersion: z.number().int(),
     settings: z.record(z.string(), z.unknown()),
     designHash: hash.nullable(),
@@ -127,7 +138,9 @@ export function analysisInputFromRaw(raw: BundleRaw): StudyAnalysisInput {
       armKey: run.armLabel,
       replicate: run.replicate,
       state: run.state,
-      withdrawnReason: run.withdrawnReason,
+      withdrawnCategory: run.withdrawnCategory,
+      withdrawnAfterEnd: run.withdrawnFromState === "ended_threshold" || run.withdrawnFromState === "censored",
+      attempt: run.attempt,
       readings: (byRun.get(run.runId) ?? [])
         .filter((r) => r.attempt === run.attempt)
         .map((r) => ({ id: r.id, cut: r.cut, position: r.position, kind: r.kind, value: r.value, supersedes: r.supersedesId })),

@@ -9,6 +9,7 @@
 import { cardRunOutcomes, forceRunOutcomes, resolveCorrections, type ForceProtocol, type ForceReading, type ForceRunOutcomes, type CardRunOutcomes } from "./outcomes.ts";
 import { analyzeParallelArms, analyzeWithinBlade, type ParallelAnalysis, type RunOutcomeRecord, type WithinBladeAnalysis } from "./stats/arm-analysis.ts";
 import { holmAdjust } from "./stats/holm.ts";
+import type { ReasonCategory } from "./reason-categories.ts";
 
 export const ANALYSIS_VERSION = 1;
 
@@ -30,7 +31,12 @@ export type AnalysisRun = {
   armKey: string;
   replicate: number;
   state: "ended_threshold" | "censored" | "withdrawn" | "waiting" | "in_progress";
-  withdrawnReason: string | null;
+  /** The withdrawal's category only: the lead's note never enters the analysis. */
+  withdrawnCategory: ReasonCategory | null;
+  /** True when the run had ended (threshold or cap) before it was withdrawn. */
+  withdrawnAfterEnd: boolean;
+  /** The run's sharpening attempt (1 = first); earlier attempts failed. */
+  attempt: number;
   /** Readings of the run's last attempt, corrections included (the latest version is used). */
   readings: (ForceReading & { id: string; supersedes?: string | null })[];
 };
@@ -56,7 +62,8 @@ export type RunResult = {
   armKey: string;
   replicate: number;
   state: AnalysisRun["state"];
-  withdrawnReason: string | null;
+  withdrawnCategory: ReasonCategory | null;
+  withdrawnAfterEnd: boolean;
   force: ForceRunOutcomes | null;
   card: CardRunOutcomes | null;
   /** The primary outcome of the run, or null when it has none (withdrawn, failed, not ended). */
@@ -76,10 +83,64 @@ export type StudyAnalysis = {
   /** Arm mean curves, drawn only while at least half of the arm's runs are still going (ARM_CURVE_RULE). */
   armCurves: { armKey: string; nRuns: number; points: { cut: number; mean: number; n: number }[] }[];
   armCurveRule?: string;
-  flow: { enrolledBlades: number; runs: number; analysed: number; endedAtThreshold: number; censored: number; withdrawn: { runId: string; bladeKey: string; reason: string }[]; excluded: { runId: string; reason: string }[] };
+  flow: {
+    enrolledBlades: number;
+    runs: number;
+    analysed: number;
+    endedAtThreshold: number;
+    censored: number;
+    withdrawn: FlowWithdrawal[];
+    excluded: { runId: string; reason: string }[];
+    perArm: ArmFlow[];
+  };
   warnings: string[];
   error: string | null;
 };
+
+export type FlowWithdrawal = { runId: string; bladeKey: string; armKey: string; category: ReasonCategory | null; afterEnd: boolean };
+
+/** The flow of blades and runs in one arm (or condition), under its neutral label. */
+export type ArmFlow = {
+  armKey: string;
+  /** Blades enrolled (parallel) or tested under the condition (within-blade). */
+  bladesEnrolled: number;
+  runsScheduled: number;
+  /** Sharpening attempts that failed and were re-done, plus last attempts that failed. */
+  failedSharpeningAttempts: number;
+  endedAtThreshold: number;
+  censored: number;
+  withdrawn: number;
+  withdrawnByCategory: { category: ReasonCategory | "uncategorised"; runs: number }[];
+  excluded: number;
+  runsAnalysed: number;
+  bladesAnalysed: number;
+};
+
+/** Per-arm flow, arms in label order. */
+export function armFlow(input: Pick<StudyAnalysisInput, "armKeys" | "runs">, runs: RunResult[], excluded: { runId: string }[]): ArmFlow[] {
+  const excludedIds = new Set(excluded.map((e) => e.runId));
+  const attempts = new Map(input.runs.map((r) => [r.runId, r.attempt]));
+  return [...input.armKeys].sort().map((armKey) => {
+    const mine = runs.filter((r) => r.armKey === armKey);
+    const analysed = mine.filter((r) => r.value !== null);
+    const withdrawn = mine.filter((r) => r.state === "withdrawn");
+    const byCategory = new Map<ReasonCategory | "uncategorised", number>();
+    for (const w of withdrawn) byCategory.set(w.withdrawnCategory ?? "uncategorised", (byCategory.get(w.withdrawnCategory ?? "uncategorised") ?? 0) + 1);
+    return {
+      armKey,
+      bladesEnrolled: new Set(mine.map((r) => r.bladeKey)).size,
+      runsScheduled: mine.length,
+      failedSharpeningAttempts: mine.reduce((s, r) => s + Math.max(0, (attempts.get(r.runId) ?? 1) - 1) + (r.force?.failedSharpening ? 1 : 0), 0),
+      endedAtThreshold: mine.filter((r) => r.force?.status === "ended-at-threshold").length,
+      censored: mine.filter((r) => r.censored).length,
+      withdrawn: withdrawn.length,
+      withdrawnByCategory: [...byCategory].sort((a, b) => a[0].localeCompare(b[0])).map(([category, n]) => ({ category, runs: n })),
+      excluded: mine.filter((r) => excludedIds.has(r.runId)).length,
+      runsAnalysed: analysed.length,
+      bladesAnalysed: new Set(analysed.map((r) => r.bladeKey)).size,
+    };
+  });
+}
 
 function primaryValue(key: PrimaryOutcome, force: ForceRunOutcomes | null, card: CardRunOutcomes | null): { value: number | null; censored: boolean } {
   switch (key) {
@@ -101,7 +162,7 @@ function primaryValue(key: PrimaryOutcome, force: ForceRunOutcomes | null, card:
 /** Per-run outcomes, in run order as given. */
 export function runResults(input: StudyAnalysisInput): RunResult[] {
   return input.runs.map((run) => {
-    const base = { runId: run.runId, bladeKey: run.bladeKey, armKey: run.armKey, replicate: run.replicate, state: run.state, withdrawnReason: run.withdrawnReason };
+    const base = { runId: run.runId, bladeKey: run.bladeKey, armKey: run.armKey, replicate: run.replicate, state: run.state, withdrawnCategory: run.withdrawnCategory, withdrawnAfterEnd: run.withdrawnAfterEnd };
     if (run.state === "withdrawn" || run.state === "waiting" || run.state === "in_progress") {
       return { ...base, force: null, card: null, value: null, censored: false, curve: [], error: null };
     }
@@ -197,7 +258,9 @@ export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
     error = e instanceof Error ? e.message : String(e);
   }
 
-  const withdrawn = runs.filter((r) => r.state === "withdrawn").map((r) => ({ runId: r.runId, bladeKey: r.bladeKey, reason: r.withdrawnReason ?? "" }));
+  const withdrawn: FlowWithdrawal[] = runs
+    .filter((r) => r.state === "withdrawn")
+    .map((r) => ({ runId: r.runId, bladeKey: r.bladeKey, armKey: r.armKey, category: r.withdrawnCategory, afterEnd: r.withdrawnAfterEnd }));
   return {
     analysisVersion: ANALYSIS_VERSION,
     primaryOutcome: { key: input.primaryOutcome, label: meta.label, unit: meta.unit },
@@ -215,6 +278,7 @@ export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
       censored: runs.filter((r) => r.censored).length,
       withdrawn,
       excluded,
+      perArm: armFlow(input, runs, excluded),
     },
     warnings: [...new Set(warnings)],
     error,

@@ -145,8 +145,14 @@ export const RandomizationSchema = z
   })
   .refine((r) => r.method === "complete" || r.blockSizes.length > 0, { path: ["blockSizes"], message: "Permuted blocks need at least one block size, e.g. 4" });
 
+/** An empty seed field means the server draws the seed; a typed one is kept and marked as typed. */
 export const SeedSchema = z.object({
-  seed: z.string({ error: "Type a seed, or take the suggested one" }).trim().min(1, "Type a seed, or take the suggested one").max(100, "Keep the seed under 100 characters"),
+  seed: z
+    .string()
+    .trim()
+    .max(100, "Keep the seed under 100 characters")
+    .optional()
+    .transform((s) => (s ? s : null)),
 });
 
 export const EnrolSchema = z.object({

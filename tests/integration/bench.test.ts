@@ -293,14 +293,16 @@ describe("the bench", () => {
     const [inProgress] = mine.filter((r) => r.state === "in_progress");
     const noReason = await lead.post(progress, { intent: "withdraw", runId: inProgress.id, reason: "" });
     expect(noReason.status).toBe(400);
-    const w = await lead.post(progress, { intent: "withdraw", runId: inProgress.id, reason: "Blade dropped and damaged" });
+    const noCategory = await lead.post(progress, { intent: "withdraw", runId: inProgress.id, reason: "Blade dropped and damaged" });
+    expect(noCategory.status).toBe(400);
+    const w = await lead.post(progress, { intent: "withdraw", runId: inProgress.id, category: "blade_damaged", reason: "Blade dropped and damaged" });
     expect(w.status).toBe(200);
-    const [row] = await db().select({ state: runs.state, reason: runs.withdrawnReason }).from(runs).where(eq(runs.id, inProgress.id));
-    expect(row).toEqual({ state: "withdrawn", reason: "Blade dropped and damaged" });
+    const [row] = await db().select({ state: runs.state, reason: runs.withdrawnReason, category: runs.withdrawnCategory }).from(runs).where(eq(runs.id, inProgress.id));
+    expect(row).toEqual({ state: "withdrawn", reason: "Blade dropped and damaged", category: "blade_damaged" });
     expect((await post(s.f.testers[0].client, s, inProgress.id, { cut: 2, position: "heel", value: 200 })).status).toBe(409);
 
     const target = waiting[0];
-    const r = await lead.post(progress, { intent: "reassign", runIds: [target.id], toTesterId: s.f.testers[1].id, reason: "Tester one is away this week" });
+    const r = await lead.post(progress, { intent: "reassign", runIds: [target.id], toTesterId: s.f.testers[1].id, category: "tester_unavailable", reason: "Tester one is away this week" });
     expect(r.status).toBe(200);
     const [moved] = await db().select({ testerId: runs.testerId }).from(runs).where(eq(runs.id, target.id));
     expect(moved.testerId).toBe(s.f.testers[1].id);

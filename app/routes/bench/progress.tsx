@@ -8,21 +8,22 @@ import { BenchError } from "~/server/bench/api.server.ts";
 import { reassignRuns, ReassignInput, studyOfLab, studyProgress, studyTesterChoices, withdrawRun, WithdrawInput } from "~/server/bench/leads.server.ts";
 import { parseForm } from "~/lib/forms.ts";
 import { readFormData } from "~/server/form-data.server.ts";
+import { ReasonCategorySelect } from "~/components/reason-category-select.tsx";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Progress · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { lab } = await requireLabRole(request, params.labId, MANAGERS);
+  const { lab, role } = await requireLabRole(request, params.labId, MANAGERS);
   const study = isUuid(params.studyId) ? await studyOfLab(lab.id, params.studyId) : null;
   if (!study) notFound();
   const [progress, testers] = await Promise.all([studyProgress(lab.id, study.id), studyTesterChoices(lab.id, study.id)]);
-  return { labId: lab.id, study: { id: study.id, shortName: study.shortName, state: study.state, hasPreparer: !!study.preparerId }, progress, testers };
+  return { labId: lab.id, role, study: { id: study.id, shortName: study.shortName, state: study.state, hasPreparer: !!study.preparerId }, progress, testers };
 }
 
 type Result = { ok: boolean; message?: string; errors: Record<string, string> };
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const { lab, user } = await requireLabRole(request, params.labId, MANAGERS);
+  const { lab, user, role } = await requireLabRole(request, params.labId, MANAGERS);
   const study = isUuid(params.studyId) ? await studyOfLab(lab.id, params.studyId) : null;
   if (!study) notFound();
   const form = await readFormData(request);
@@ -31,8 +32,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (intent === "withdraw") {
       const parsed = parseForm(WithdrawInput, form);
       if (!parsed.ok) return data<Result>({ ok: false, errors: parsed.errors, message: Object.values(parsed.errors)[0] }, { status: 400 });
-      await withdrawRun(lab.id, study.id, user.id, parsed.data);
-      return data<Result>({ ok: true, errors: {}, message: "The run is withdrawn; the reason is on the record." });
+      await withdrawRun(lab.id, study.id, { id: user.id, role }, parsed.data);
+      return data<Result>({ ok: true, errors: {}, message: "The run is withdrawn; its category and note are on the record (the note stays hidden from blinded readers until unblinding)." });
     }
     if (intent === "reassign") {
       const parsed = parseForm(ReassignInput, form);
@@ -50,7 +51,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 type Progress = Route.ComponentProps["loaderData"]["progress"];
 
 export default function ProgressPage({ loaderData, actionData }: Route.ComponentProps) {
-  const { labId, study, testers } = loaderData;
+  const { labId, study, testers, role } = loaderData;
   const [progress, setProgress] = useState<Progress>(loaderData.progress);
   const [stale, setStale] = useState(false);
   const navigation = useNavigation();
@@ -139,16 +140,18 @@ export default function ProgressPage({ loaderData, actionData }: Route.Component
               <span className="text-graphite-600">sitting {r.sitting}</span>
               <span>{r.testerName}</span>
               <RunStateBadge state={r.state} words={r.stateWords} />
-              {r.state !== "withdrawn" && study.state === "running" ? (
+              {r.state !== "withdrawn" && study.state === "running" && (role === "owner" || (r.state !== "ended_threshold" && r.state !== "censored")) ? (
                 <details className="ml-auto">
                   <summary className="min-h-target cursor-pointer font-bold">Withdraw…</summary>
                   <Form method="post" className="mt-2 flex flex-wrap gap-2">
                     <input type="hidden" name="intent" value="withdraw" />
                     <input type="hidden" name="runId" value={r.id} />
+                    <ReasonCategorySelect />
                     <label className="flex flex-col font-bold">
-                      Reason
+                      Note (hidden from blinded readers until unblinding)
                       <input name="reason" required className="min-h-target rounded border border-graphite-400 px-2" />
                     </label>
+                    {r.state === "ended_threshold" || r.state === "censored" ? <p className="w-full text-sm text-fault">This run has ended: as an owner you are the second person; the report lists it under “Withdrawals of ended runs”.</p> : null}
                     <button type="submit" className="min-h-target self-end rounded border border-fault px-3 font-bold text-fault">
                       Withdraw the run
                     </button>
@@ -183,8 +186,9 @@ export default function ProgressPage({ loaderData, actionData }: Route.Component
                 ))}
               </select>
             </label>
+            <ReasonCategorySelect defaultValue="tester_unavailable" />
             <label className="flex flex-col gap-1 font-bold">
-              Reason
+              Note (hidden from blinded readers until unblinding)
               <input name="reason" className="min-h-target rounded border border-graphite-400 px-2" />
             </label>
             <div>

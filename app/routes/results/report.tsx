@@ -4,6 +4,8 @@ import { ResultsTables } from "~/components/results-tables.tsx";
 import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { reportDetails } from "~/server/analysis/report.server.ts";
+import { FlowDiagram, FlowPerArmTable } from "~/components/flow-per-arm.tsx";
+import { reasonCategoryLabel } from "~/domain/reason-categories.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Report · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -69,6 +71,10 @@ export default function Report({ loaderData }: Route.ComponentProps) {
           Run order: {r.settings?.method === "permuted_blocks" ? `permuted blocks of ${r.settings.blockSizes.join(" or ")} runs` : "complete randomization"}
           {r.settings?.stratifyByTester ? ", stratified by tester" : ""}; sittings of {r.settings?.sittingLength ?? "—"} runs. Seed <code>{r.seed}</code>, algorithm version {r.algorithmVersion}.
         </p>
+        <p className="mt-1" data-testid="seed-source">
+          Seed {r.seedSource === "server" ? "drawn by the server (cryptographic random)" : r.seedSource === "typed" ? "typed by the lead" : "of unrecorded source"}.{" "}
+          {r.earlierRolls.length === 0 ? "The schedule was rolled once." : `${r.earlierRolls.length} roll(s) before the final one, at ${r.earlierRolls.map(day).join(", ")}; final roll at ${day(r.finalRollAt)}.`}
+        </p>
         <p className="mt-1 text-sm">Design hash <code className="break-all">{r.designHash}</code>; schedule hash <code className="break-all">{r.scheduleHash}</code>.</p>
       </Section>
 
@@ -85,9 +91,32 @@ export default function Report({ loaderData }: Route.ComponentProps) {
         </table>
         {view.flow.withdrawn.length ? (
           <ul className="mt-2 list-disc pl-6">
-            {view.flow.withdrawn.map((w) => <li key={w.runId}>Blade {w.bladeKey}: {w.reason}</li>)}
+            {view.flow.withdrawn.map((w) => <li key={w.runId}>{`Blade ${w.bladeKey}${w.armKey ? ` (${w.armKey})` : ""}: ${reasonCategoryLabel(w.category)}${w.afterEnd ? ", after the run had ended" : ""}`}</li>)}
           </ul>
         ) : null}
+        <h3 className="mt-3 font-bold">Per {study.design === "within_blade" ? "condition" : "arm"}</h3>
+        <FlowPerArmTable flow={view.flow.perArm} design={study.design} />
+        <div className="mt-3"><FlowDiagram flow={view.flow.perArm} enrolledBlades={view.flow.enrolledBlades} design={study.design} /></div>
+        <p className="mt-2 text-sm" data-testid="notes-rule">
+          {details.notes.unblinded
+            ? `Leads' notes on withdrawals, reassignments and events were hidden from blinded readers until unblinding (${day(details.notes.unblindedAt)}); they are shown below.`
+            : "Leads' notes on withdrawals, reassignments and events are hidden until the study is unblinded; only their categories are shown."}
+        </p>
+        {details.withdrawalNotes?.length ? (
+          <ul className="mt-1 list-disc pl-6" data-testid="withdrawal-notes">
+            {details.withdrawalNotes.map((w) => <li key={w.run}>{`Run ${w.run} (blade ${w.bladeCode}), ${reasonCategoryLabel(w.category)}: ${w.note}`}</li>)}
+          </ul>
+        ) : null}
+      </Section>
+
+      <Section title="Withdrawals of ended runs">
+        {details.endedRunWithdrawals.length === 0 ? <p>None: no run was withdrawn after it had ended.</p> : (
+          <ul className="list-disc pl-6" data-testid="ended-run-withdrawals">
+            {details.endedRunWithdrawals.map((w) => (
+              <li key={w.run}>{`Run ${w.run} (blade ${w.bladeCode}) had ${w.fromState === "censored" ? "reached the cap" : "ended at the threshold"}; withdrawn by an owner ${day(w.at)}, ${reasonCategoryLabel(w.category)}${w.note ? `: ${w.note}` : ""}`}</li>
+            ))}
+          </ul>
+        )}
       </Section>
 
       <Section title="Outcomes and comparisons">
@@ -97,7 +126,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
       <Section title="Deviations">
         {details.deviations.length === 0 ? <p>None recorded.</p> : (
           <ul className="list-disc pl-6">
-            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind.replace("_", " ")}: {d.note || "—"} ({day(d.at)})</li>)}
+            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind.replace("_", " ")}{d.category ? ` (${reasonCategoryLabel(d.category)})` : ""}: {d.noteWithheld ? "note hidden until unblinding" : d.note || "—"} ({day(d.at)})</li>)}
           </ul>
         )}
       </Section>

@@ -15,12 +15,6 @@ import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Randomize · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
-/** A suggested seed: random, readable, typed into the record as it is shown. */
-function suggestSeed() {
-  const bytes = crypto.getRandomValues(new Uint8Array(6));
-  return `seed-${[...bytes].map((b) => b.toString(16).padStart(2, "0")).join("")}`;
-}
-
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, MANAGERS);
   const studyId = studyIdParam(params.studyId);
@@ -31,10 +25,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const armName = new Map(d.arms.map((a) => [a.id, a.name]));
   return {
     lab,
-    study: { id: d.study.id, shortName: d.study.shortName, state: d.study.state, design: d.study.design, seed: d.study.seed, algorithmVersion: d.study.algorithmVersion, designHash: d.study.designHash, scheduleHash: d.study.scheduleHash },
+    study: { id: d.study.id, shortName: d.study.shortName, state: d.study.state, design: d.study.design, seed: d.study.seed, seedSource: d.study.seedSource, algorithmVersion: d.study.algorithmVersion, designHash: d.study.designHash, scheduleHash: d.study.scheduleHash },
     steps: d.steps,
     problems: d.study.state === "draft" ? d.problems : [],
-    suggestedSeed: suggestSeed(),
     rows: preview.rows.map((r) => ({ position: r.position, sitting: r.sitting, tester: r.testerName, code: r.code, bladeRun: r.bladeRunNumber, label: r.neutralLabel ?? "" })),
     balance: preview.balance
       ? {
@@ -69,12 +62,12 @@ export async function action({ request, params }: Route.ActionArgs) {
   const d = await getDesigner(lab.id, studyId);
   if (!d) throw data("This study does not exist, or it belongs to another lab.", { status: 404 });
   if ((d.study.state === "draft" || d.study.state === "randomized") && d.problems.length) {
-    return data({ ok: false as const, errors: {} as Record<string, string>, values: { seed: parsed.data.seed }, formError: "The design cannot be randomized yet.", problems: d.problems }, { status: 400 });
+    return data({ ok: false as const, errors: {} as Record<string, string>, values: { seed: parsed.data.seed ?? "" }, formError: "The design cannot be randomized yet.", problems: d.problems }, { status: 400 });
   }
   try {
     await randomizeStudy(user.id, lab.id, studyId, parsed.data.seed);
   } catch (error) {
-    return refusalResponse(error, parsed.ok ? { seed: parsed.data.seed } : {});
+    return refusalResponse(error, parsed.ok ? { seed: parsed.data.seed ?? "" } : {});
   }
   return redirect(`/labs/${lab.id}/studies/${studyId}/randomize?rolled=1`);
 }
@@ -105,7 +98,7 @@ export default function Randomize({ loaderData, actionData }: Route.ComponentPro
         <Form method="post" className="mt-6 flex max-w-xl flex-col gap-3 rounded-lg border border-rule bg-card p-4" noValidate>
           <h2 className="text-xl font-bold">{draft ? "Randomize" : "Re-roll with a new seed"}</h2>
           {!draft ? <p className="text-graphite-800">No reading has been taken yet, so the schedule may be rolled again. Every roll stays on the record.</p> : null}
-          <Field label="Seed" name="seed" defaultValue={failure?.values?.seed ?? d.suggestedSeed} error={failure?.errors?.seed} hint="Type your own (e.g. from dice), or keep the suggested random one. It is recorded with the study." />
+          <Field label="Seed" name="seed" defaultValue={failure?.values?.seed ?? ""} error={failure?.errors?.seed} hint="Leave empty: the server draws the seed (cryptographic random), so nobody chooses it. Type one only to reproduce a published study; it is then marked as typed. Every roll and its time are in the report." />
           <div>
             <SubmitButton>{draft ? "Randomize the study" : "Re-roll"}</SubmitButton>
           </div>
@@ -124,6 +117,10 @@ export default function Randomize({ loaderData, actionData }: Route.ComponentPro
           <dl className="figures my-3 grid gap-1 md:grid-cols-[14rem_1fr]">
             <dt className="font-bold">Seed</dt>
             <dd data-testid="seed">{d.study.seed}</dd>
+            <dt className="font-bold">Seed source</dt>
+            <dd data-testid="seed-source">{d.study.seedSource === "server" ? "drawn by the server" : d.study.seedSource === "typed" ? "typed by the lead" : "not recorded"}</dd>
+            <dt className="font-bold">Rolls before the final one</dt>
+            <dd data-testid="earlier-rolls">{Math.max(0, d.rolls.length - 1)}</dd>
             <dt className="font-bold">Algorithm version</dt>
             <dd>{d.study.algorithmVersion}</dd>
             <dt className="font-bold">Design hash</dt>

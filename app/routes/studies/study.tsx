@@ -7,6 +7,7 @@ import { shortHash } from "~/components/protocol-view.tsx";
 import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { getDesigner, studyIdParam } from "~/server/studies/designer.server.ts";
 import { DESIGN_LABELS } from "~/lib/study-input.ts";
+import { rollHistory } from "~/server/studies/rolls.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -17,7 +18,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const url = new URL(request.url);
   return {
     lab,
-    study: { id: d.study.id, shortName: d.study.shortName, question: d.study.question, state: d.study.state, design: d.study.design, seed: d.study.seed, designHash: d.study.designHash, scheduleHash: d.study.scheduleHash, algorithmVersion: d.study.algorithmVersion },
+    study: { id: d.study.id, shortName: d.study.shortName, question: d.study.question, state: d.study.state, design: d.study.design, seed: d.study.seed, seedSource: d.study.seedSource, designHash: d.study.designHash, scheduleHash: d.study.scheduleHash, algorithmVersion: d.study.algorithmVersion },
+    rolls: await rollHistory(d.study.id),
     steps: d.steps,
     problems: d.problems,
     started: url.searchParams.get("started"),
@@ -28,7 +30,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 const action = "inline-flex min-h-target items-center rounded border border-graphite-800 bg-card px-4 font-bold no-underline text-graphite-950 hover:bg-paper-deep";
 
 export default function StudyPage({ loaderData }: Route.ComponentProps) {
-  const { lab, study, steps, problems, started, mailFailed } = loaderData;
+  const { lab, study, steps, problems, started, mailFailed, rolls } = loaderData;
   const base = `/labs/${lab.id}/studies/${study.id}`;
   return (
     <div>
@@ -61,6 +63,13 @@ export default function StudyPage({ loaderData }: Route.ComponentProps) {
           <dl className="figures mb-4 grid gap-1 md:grid-cols-[14rem_1fr]">
             <dt className="font-bold">Seed</dt>
             <dd>{study.seed}</dd>
+            <dt className="font-bold">Seed source</dt>
+            <dd data-testid="seed-source">{study.seedSource === "server" ? "drawn by the server (cryptographic random)" : study.seedSource === "typed" ? "typed by the lead" : "not recorded"}</dd>
+            <dt className="font-bold">Rolls before the final one</dt>
+            <dd data-testid="earlier-rolls">
+              {rolls.earlier.length === 0 ? "none" : `${rolls.earlier.length}: ${rolls.earlier.map((r) => r.at.slice(0, 16).replace("T", " ") + " UTC").join(", ")}`}
+              {rolls.finalAt ? ` · final roll ${rolls.finalAt.slice(0, 16).replace("T", " ")} UTC` : ""}
+            </dd>
             <dt className="font-bold">Algorithm version</dt>
             <dd>{study.algorithmVersion}</dd>
             <dt className="font-bold">Design hash (SHA-256)</dt>

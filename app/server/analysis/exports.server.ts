@@ -44,7 +44,7 @@ export function outcomesCsv(record: StudyRecord, analysis: StudyAnalysis): strin
   const names = new Map(raw.arms.map((a) => [a.label, a.name]));
   const runs = new Map(raw.runs.map((r) => [r.runId, r]));
   return csv(
-    ["study", "run", "blade_code", "arm_label", "arm_name", "replicate", "state", "baseline_gf", "cuts_to_threshold", "censored", "working_sharpness_gf", "loss_rate_gf_per_cut", "loss_rate_se", "initial_cutting_performance_mm", "total_card_cut_mm", "primary_outcome", "primary_value", "withdrawn_reason", "note"],
+    ["study", "run", "blade_code", "arm_label", "arm_name", "replicate", "state", "baseline_gf", "cuts_to_threshold", "censored", "working_sharpness_gf", "loss_rate_gf_per_cut", "loss_rate_se", "initial_cutting_performance_mm", "total_card_cut_mm", "primary_outcome", "primary_value", "withdrawn_category", "withdrawn_note", "withdrawn_after_end", "note"],
     analysis.runs.map((r) => [
       raw.study.shortName,
       runs.get(r.runId)?.schedulePosition ?? "",
@@ -63,7 +63,10 @@ export function outcomesCsv(record: StudyRecord, analysis: StudyAnalysis): strin
       r.card?.totalCardCut ?? "",
       analysis.primaryOutcome.key,
       r.value ?? "",
-      r.withdrawnReason ?? "",
+      r.withdrawnCategory ?? "",
+      // The lead's note only once unblinded (bundleRaw leaves it null before).
+      runs.get(r.runId)?.withdrawnNote ?? "",
+      r.state === "withdrawn" ? (r.withdrawnAfterEnd ? "yes" : "no") : "",
       r.error ?? (r.censored ? "censored at the cap: a lower bound" : ""),
     ]),
   );

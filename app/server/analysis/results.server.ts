@@ -99,7 +99,17 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
     rmstTau: anyCensored ? (p?.survival?.rmst?.tau ?? null) : null,
     survivalNote: p?.survival?.note ?? null,
     withinBlade,
-    flow: analysis.flow,
+    // Rebuilt field by field: only categories reach the page, whatever an older snapshot holds.
+    flow: {
+      enrolledBlades: analysis.flow.enrolledBlades,
+      runs: analysis.flow.runs,
+      analysed: analysis.flow.analysed,
+      endedAtThreshold: analysis.flow.endedAtThreshold,
+      censored: analysis.flow.censored,
+      withdrawn: analysis.flow.withdrawn.map((w) => ({ runId: w.runId, bladeKey: w.bladeKey, armKey: w.armKey ?? null, category: w.category ?? null, afterEnd: w.afterEnd ?? false })),
+      excluded: analysis.flow.excluded,
+      perArm: (analysis.flow.perArm ?? []).map((f) => ({ ...f, arm: label(f.armKey) })),
+    },
     warnings: analysis.warnings,
     error: analysis.error,
     nBlades: p?.nBlades ?? analysis.withinBlade?.pairs[0]?.nBlades ?? 0,

@@ -1,6 +1,6 @@
 import { and, asc, eq, getTableColumns, inArray, sql } from "drizzle-orm";
 import { db, type DbOrTx } from "../db.server.ts";
-import { protocolVersions, readings, runEvents, runs, studies, studyArms, studyBlades, users } from "../db/schema/index.ts";
+import { protocolVersions, randomizationRolls, readings, runEvents, runs, studies, studyArms, studyBlades, users } from "../db/schema/index.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
 import type { PrimaryOutcome, StudyAnalysisInput } from "~/domain/study-analysis.ts";
 import { analysisInputFromRaw, type BundleRaw } from "~/domain/bundle.ts";
@@ -44,14 +44,31 @@ export async function loadStudyRecord(labId: string, studyId: string, tx: DbOrTx
     .select({ id: users.id, name: users.name })
     .from(users)
     .where(inArray(users.id, [...new Set([...runRows.map((r) => r.testerId), ...readingRows.map((r) => r.enteredBy)])].concat(["00000000-0000-0000-0000-000000000000"])));
-  return { study, protocol, arms, enrolled, runs: runRows, readings: readingRows, events: eventRows, people };
+  const rolls = await tx.select({ rolledAt: randomizationRolls.rolledAt, seedSource: randomizationRolls.seedSource }).from(randomizationRolls).where(eq(randomizationRolls.studyId, studyId)).orderBy(asc(randomizationRolls.rolledAt));
+  return { study, protocol, arms, enrolled, runs: runRows, readings: readingRows, events: eventRows, people, rolls };
 }
 
 export type StudyRecord = NonNullable<Awaited<ReturnType<typeof loadStudyRecord>>>;
 
 /**
+ * Whether a bench event's note is a lead's (or anyone's but the run's tester): such notes
+ * can name a steel or a condition, so blinded readers get only the event's category.
+ * Testers' own notes are written blind and stay as they are.
+ */
+export function isLeadNote(event: { enteredBy: string | null }, run: { testerId: string }): boolean {
+  return event.enteredBy !== run.testerId;
+}
+
+/** The note a reader of this study may see: a lead's note only once the study is unblinded. */
+export function visibleEventNote(study: { state: string }, event: { note: string; enteredBy: string | null }, run: { testerId: string }): string | null {
+  return study.state === "unblinded" || event.note === "" || !isLeadNote(event, run) ? event.note : null;
+}
+
+/**
  * The raw data of a study as the reproducibility bundle carries it: blades by blind
  * code, arms by neutral label (names only once unblinded), runs, readings and events.
+ * Lead notes (withdrawals, reassignments, any event note not the tester's own) are null
+ * until unblinding; their categories are always there.
  */
 export function bundleRaw(record: StudyRecord): BundleRaw {
   const { study, protocol, arms, enrolled } = record;
@@ -60,6 +77,7 @@ export function bundleRaw(record: StudyRecord): BundleRaw {
   const unblinded = study.state === "unblinded";
   const label = new Map(arms.map((a) => [a.id, a.neutralLabel ?? a.id]));
   const code = new Map(enrolled.map((b) => [b.id, b.blindCode ?? b.id]));
+  const runById = new Map(record.runs.map((r) => [r.id, r]));
   const plan = study.analysisPlan ?? { alpha: 0.05, comparisons: "all_pairs" as const, referenceArmId: null, tests: [] };
   const f = content.edgeForce;
   return {
@@ -84,6 +102,8 @@ export function bundleRaw(record: StudyRecord): BundleRaw {
     },
     randomization: {
       seed: study.seed ?? "",
+      seedSource: study.seedSource,
+      earlierRolls: record.rolls.slice(0, -1).map((r) => ({ rolledAt: r.rolledAt.toISOString(), seedSource: r.seedSource })),
       algorithmVersion: study.algorithmVersion ?? 0,
       settings: (study.randomization ?? {}) as Record<string, unknown>,
       designHash: study.designHash,
@@ -100,7 +120,9 @@ export function bundleRaw(record: StudyRecord): BundleRaw {
       bladeRunNumber: run.bladeRunNumber,
       state: run.state,
       attempt: run.attempt,
-      withdrawnReason: run.withdrawnReason,
+      withdrawnCategory: run.withdrawnCategory,
+      withdrawnNote: unblinded ? run.withdrawnReason : null,
+      withdrawnFromState: run.withdrawnFromState,
       instrumentFlagged: run.instrumentFlagged,
     })),
     readings: record.readings.map((r) => ({
@@ -112,11 +134,15 @@ export function bundleRaw(record: StudyRecord): BundleRaw {
       kind: r.kind,
       value: r.value,
       supersedesId: r.supersedesId,
-      reason: r.reason,
+      // Corrections come from the run's own tester; anyone else's reason waits for unblinding.
+      reason: unblinded || !isLeadNote(r, runById.get(r.runId)!) ? r.reason : null,
       enteredAt: r.enteredAt.toISOString(),
       contentHash: r.contentHash,
     })),
-    events: record.events.map((e) => ({ runId: e.runId, attempt: e.attempt, cut: e.cut, kind: e.kind, note: e.note, enteredAt: e.enteredAt.toISOString() })),
+    events: record.events.map((e) => {
+      const note = visibleEventNote(study, e, runById.get(e.runId)!);
+      return { runId: e.runId, attempt: e.attempt, cut: e.cut, kind: e.kind, category: e.category, note, noteWithheld: note === null, enteredAt: e.enteredAt.toISOString() };
+    }),
   };
 }
 

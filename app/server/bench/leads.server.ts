@@ -2,12 +2,13 @@
 // withdrawing a run, reassigning waiting runs, and the preparer's list of runs to sharpen.
 import { and, asc, count, eq, inArray, sql } from "drizzle-orm";
 import { z } from "zod";
-import { db } from "../db.server.ts";
+import { db, type Transaction } from "../db.server.ts";
 import { memberships, protocolVersions, readings, runEvents, runs, studies, studyArms, studyBlades, studyTesters, users } from "../db/schema/index.ts";
 import { recordAudit } from "../audit.server.ts";
 import { BenchError } from "./api.server.ts";
 import { lockRun, RUN_STATE_WORDS, setupAttempt } from "./runs.server.ts";
 import { formatBlindCode } from "~/domain/blind-codes.ts";
+import { REASON_CATEGORY_KEYS } from "~/domain/reason-categories.ts";
 import { ordinal } from "~/domain/bench/run-progress.ts";
 import { SharpeningStepSchema, stepInWords, type ProtocolContent } from "~/domain/protocol.ts";
 import type { RunState } from "../db/schema/studies.ts";
@@ -97,25 +98,40 @@ export async function studyTesterChoices(labId: string, studyId: string) {
 }
 
 const reason = z.string({ error: "Give a reason" }).trim().min(3, "Give a reason (at least 3 characters)").max(1000, "At most 1000 characters");
-export const WithdrawInput = z.object({ runId: z.string().uuid("Choose a run"), reason });
+const category = z.enum(REASON_CATEGORY_KEYS, { error: "Choose the reason's category" });
+export const WithdrawInput = z.object({ runId: z.string().uuid("Choose a run"), category, reason });
 export const ReassignInput = z.object({
   runIds: z.preprocess((v) => (Array.isArray(v) ? v : v ? [v] : []), z.array(z.string().uuid()).min(1, "Choose at least one waiting run").max(500)),
   toTesterId: z.string({ error: "Choose the tester" }).uuid("Choose the tester"),
+  category,
   reason,
 });
 
-/** Withdraws a run, with its reason on the run, as an event and in the audit log. */
-export async function withdrawRun(labId: string, studyId: string, actorId: string, input: z.infer<typeof WithdrawInput>) {
-  return db().transaction(async (tx) => {
+/** A run that has ended (at the threshold or the cap) has shown its values: withdrawing it needs an owner. */
+export const ENDED_RUN_STATES: readonly RunState[] = ["ended_threshold", "censored"];
+
+/**
+ * Withdraws a run, with its category and note on the run, as an event and in the audit
+ * log. A run that has already ended can be withdrawn only by an owner (the second
+ * person): a lead who has read its values cannot drop it alone.
+ */
+export async function withdrawRun(labId: string, studyId: string, actor: { id: string; role: string }, input: z.infer<typeof WithdrawInput>) {
+  return db().transaction((tx) => withdrawRunTx(tx, labId, studyId, actor, input));
+}
+
+export async function withdrawRunTx(tx: Transaction, labId: string, studyId: string, actor: { id: string; role: string }, input: z.infer<typeof WithdrawInput>) {
+  {
     const run = await lockRun(tx, labId, input.runId);
     if (run.studyId !== studyId) throw new BenchError("No such run in this study.", 404);
     if (run.studyState !== "running") throw new BenchError(`The study is ${run.studyState}: runs are withdrawn only while it runs.`, 409);
     if (run.state === "withdrawn") throw new BenchError("This run is already withdrawn.", 409);
+    const ended = ENDED_RUN_STATES.includes(run.state);
+    if (ended && actor.role !== "owner") throw new BenchError("This run has ended: only an owner of the lab can withdraw an ended run (it is listed on its own in the report).", 403);
     const now = new Date();
-    await tx.update(runs).set({ state: "withdrawn", withdrawnReason: input.reason, endedAt: now, updatedAt: now }).where(eq(runs.id, run.id));
-    await tx.insert(runEvents).values({ labId, runId: run.id, attempt: run.attempt, kind: "withdrawn", note: input.reason, enteredBy: actorId });
-    await recordAudit(tx, { labId, actorId, action: "run.withdrawn", objectType: "run", objectId: run.id, details: { studyId, from: run.state, reason: input.reason } });
-  });
+    await tx.update(runs).set({ state: "withdrawn", withdrawnReason: input.reason, withdrawnCategory: input.category, withdrawnFromState: run.state, endedAt: now, updatedAt: now }).where(eq(runs.id, run.id));
+    await tx.insert(runEvents).values({ labId, runId: run.id, attempt: run.attempt, kind: "withdrawn", category: input.category, note: input.reason, enteredBy: actor.id });
+    await recordAudit(tx, { labId, actorId: actor.id, action: ended ? "run.withdrawn_after_end" : "run.withdrawn", objectType: "run", objectId: run.id, details: { studyId, from: run.state, category: input.category, reason: input.reason } });
+  }
 }
 
 /** Moves waiting runs to another of the study's testers: each move is a deviation on the record. */
@@ -134,9 +150,9 @@ export async function reassignRuns(labId: string, studyId: string, actorId: stri
       const [from] = await tx.select({ name: users.name }).from(users).where(eq(users.id, run.testerId));
       await tx.update(runs).set({ testerId: to.id, updatedAt: new Date() }).where(eq(runs.id, run.id));
       if (run.studyState === "running") {
-        await tx.insert(runEvents).values({ labId, runId: run.id, attempt: run.attempt, kind: "reassigned", note: `Reassigned from ${from?.name ?? "a tester"} to ${to.name}: ${input.reason}`, enteredBy: actorId });
+        await tx.insert(runEvents).values({ labId, runId: run.id, attempt: run.attempt, kind: "reassigned", category: input.category, note: `Reassigned from ${from?.name ?? "a tester"} to ${to.name}: ${input.reason}`, enteredBy: actorId });
       }
-      await recordAudit(tx, { labId, actorId, action: "run.reassigned", objectType: "run", objectId: run.id, details: { studyId, deviation: true, fromTesterId: run.testerId, toTesterId: to.id, reason: input.reason } });
+      await recordAudit(tx, { labId, actorId, action: "run.reassigned", objectType: "run", objectId: run.id, details: { studyId, deviation: true, fromTesterId: run.testerId, toTesterId: to.id, category: input.category, reason: input.reason } });
       moved += 1;
     }
     return { moved };

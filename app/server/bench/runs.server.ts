@@ -397,7 +397,7 @@ export async function startRun(labId: string, runId: string, userId: string, inp
       .where(eq(runs.id, runId));
     if (outOfOrder) {
       const note = `Started out of schedule order (the next run was at position ${next!.schedulePosition}): ${input.reason}`;
-      await tx.insert(runEvents).values({ labId, runId, attempt: run.attempt, cut: null, kind: "deviation", note, enteredBy: userId });
+      await tx.insert(runEvents).values({ labId, runId, attempt: run.attempt, cut: null, kind: "deviation", category: "protocol_deviation", note, enteredBy: userId });
       await recordAudit(tx, { labId, actorId: userId, action: "run.deviation", objectType: "run", objectId: runId, details: { kind: "out_of_order_start", expectedRunId: next!.id, reason: input.reason } });
     }
     return { instrumentFlagged: instrument!.calibration.flagged, outOfOrder };

@@ -27,7 +27,7 @@ export async function loadDemoData(): Promise<{ created: boolean; labId: string 
     }
     const library = await loadDemoLibrary(tx, lab.id, people["lead@demo.test"]);
     const protocols = await loadDemoProtocols(tx, lab.id, people["lead@demo.test"], library);
-    await loadDemoStudies(tx, lab.id, { leadId: people["lead@demo.test"], testerIds: [people["tester@demo.test"], people["tester2@demo.test"]] }, library, protocols);
+    await loadDemoStudies(tx, lab.id, { ownerId: people["owner@demo.test"], leadId: people["lead@demo.test"], testerIds: [people["tester@demo.test"], people["tester2@demo.test"]] }, library, protocols);
     return { created: true, labId: lab.id };
   });
 }

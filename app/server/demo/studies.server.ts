@@ -2,17 +2,18 @@
 // readings from the seeded simulator (invented data, labelled as such):
 // a finished parallel study (closed and unblinded), a finished within-blade study
 // (closed, still blind), a running study with runs waiting for the demo tester, and a draft.
-import { and, asc, eq } from "drizzle-orm";
+import { and, asc, desc, eq } from "drizzle-orm";
 import type { Transaction } from "../db.server.ts";
 import { blades, protocolVersions, runs, studies, studyArms, studyBlades, studyTesters } from "../db/schema/index.ts";
 import { randomizeStudyTx, startStudyTx } from "../studies/randomize.server.ts";
 import { closeStudyTx, unblindStudyTx } from "../analysis/lifecycle.server.ts";
+import { withdrawRunTx } from "../bench/leads.server.ts";
 import { recordSimulatedRun } from "../simulated-runs.server.ts";
 import { toForceProtocol, type ProtocolContent } from "~/domain/protocol.ts";
 import type { EdgeForceModel } from "~/domain/simulator.ts";
 import type { DemoLibrary } from "./library.server.ts";
 
-type People = { leadId: string; testerIds: [string, string] };
+type People = { ownerId: string; leadId: string; testerIds: [string, string] };
 
 const fineRecipe = [
   { abrasive: "Fine bench stone (invented)", grit: "1000", angleDegPerSide: 17, amountKind: "strokes", amount: 20, deburring: "Light edge-trailing strokes" },
@@ -125,7 +126,10 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   });
   await randomizeStudyTx(tx, people.leadId, labId, temper.study.id, "demo-temper-t1");
   await startStudyTx(tx, people.leadId, labId, temper.study.id);
-  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 3.8)], [temper.arms[1].id, model(150, 6.5)]]), "demo-temper-t1/sim");
+  const temperRuns = await tx.select({ id: runs.id }).from(runs).where(eq(runs.studyId, temper.study.id)).orderBy(asc(runs.schedulePosition));
+  await simulateRuns(tx, labId, temper.study.id, content, new Map([[temper.arms[0].id, model(150, 3.8)], [temper.arms[1].id, model(150, 6.5)]]), "demo-temper-t1/sim", temperRuns.length - 1);
+  // The last run never started: withdrawn by the lead with a category (its note appears once unblinded).
+  await withdrawRunTx(tx, labId, temper.study.id, { id: people.leadId, role: "lead" }, { runId: temperRuns.at(-1)!.id, category: "medium_fault", reason: "The last manila rope lot frayed at the clamp before this run (invented demo)" });
   await closeStudyTx(tx, people.leadId, labId, temper.study.id);
   await unblindStudyTx(tx, people.leadId, labId, temper.study.id);
 
@@ -148,6 +152,10 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
   await randomizeStudyTx(tx, people.leadId, labId, finish.study.id, "demo-finish-f1");
   await startStudyTx(tx, people.leadId, labId, finish.study.id);
   await simulateRuns(tx, labId, finish.study.id, content, new Map([[finish.arms[0].id, model(130, 7.0)], [finish.arms[1].id, model(175, 5.5)]]), "demo-finish-f1/sim");
+  // A run that had ended is withdrawn by the owner (a lead alone may not); the note names the
+  // condition, so blinded readers see only its category until unblinding.
+  const [finishLast] = await tx.select({ id: runs.id }).from(runs).where(eq(runs.studyId, finish.study.id)).orderBy(desc(runs.schedulePosition)).limit(1);
+  await withdrawRunTx(tx, labId, finish.study.id, { id: people.ownerId, role: "owner" }, { runId: finishLast.id, category: "blade_damaged", reason: "Polished finish blade dropped after its run; edge chipped near the heel (invented demo)" });
   await closeStudyTx(tx, people.leadId, labId, finish.study.id);
 
   // 3. Running: two runs done, the rest waiting for the demo tester.
@@ -182,6 +190,8 @@ export async function loadDemoStudies(tx: Transaction, labId: string, people: Pe
     testerIds: people.testerIds,
     replicates: 1,
   });
+  // Rolled twice: a server-drawn seed first, then the typed one kept; the study page and report count the earlier roll.
+  await randomizeStudyTx(tx, people.leadId, labId, randomized.study.id, null);
   await randomizeStudyTx(tx, people.leadId, labId, randomized.study.id, "demo-temper-t2");
 
   // 5. A draft still being designed.

@@ -1,3 +1,4 @@
+import { randomBytes } from "node:crypto";
 import { and, asc, count, eq, isNotNull, ne } from "drizzle-orm";
 import { db, type Transaction } from "../db.server.ts";
 import { memberships, protocolVersions, randomizationRolls, readings, runs, studies, studyArms, studyBlades, studyTesters, users } from "../db/schema/index.ts";
@@ -115,7 +116,16 @@ export function frozenDesign(d: Loaded, schedule: Schedule) {
  * the schedule, the runs, a new blind code per blade and the neutral arm names, all
  * from the seed; the design is frozen with its hash, and the roll is kept on the record.
  */
-export async function randomizeStudyTx(tx: Transaction, actorId: string, labId: string, studyId: string, seed: string) {
+/** A seed drawn by the server: 128 bits from the operating system's cryptographic source. */
+export function drawServerSeed(): string {
+  return randomBytes(16).toString("hex");
+}
+
+/**
+ * `seed` null: the server draws the seed (the default, so nobody can pick one that gives
+ * a schedule they like); a string: a typed seed (to reproduce a published study), marked so.
+ */
+export async function randomizeStudyTx(tx: Transaction, actorId: string, labId: string, studyId: string, seed: string | null) {
   const d = await loadDesign(tx, labId, studyId);
   if (!d) throw new StudyStateError("No such study in this lab", 404);
   if (d.study.state !== "draft" && d.study.state !== "randomized") throw new StudyStateError(`A ${d.study.state} study cannot be randomized again`);
@@ -125,7 +135,8 @@ export async function randomizeStudyTx(tx: Transaction, actorId: string, labId: 
   }
   const problems = designProblems(d);
   if (problems.length) throw new StudyNotReadyError(problems);
-  const trimmed = seed.trim();
+  const seedSource = seed === null ? ("server" as const) : ("typed" as const);
+  const trimmed = seed === null ? drawServerSeed() : seed.trim();
   if (!trimmed || trimmed.length > 100) throw new StudyNotReadyError(["Give a seed of 1 to 100 characters."]);
 
   let schedule: Schedule;
@@ -162,21 +173,21 @@ export async function randomizeStudyTx(tx: Transaction, actorId: string, labId: 
   const designHash = canonicalHash(frozen);
   await tx
     .update(studies)
-    .set({ state: "randomized", seed: trimmed, algorithmVersion: schedule.algorithmVersion, designHash, scheduleHash: frozen.scheduleHash, randomizedAt: new Date(), updatedAt: new Date() })
+    .set({ state: "randomized", seed: trimmed, seedSource, algorithmVersion: schedule.algorithmVersion, designHash, scheduleHash: frozen.scheduleHash, randomizedAt: new Date(), updatedAt: new Date() })
     .where(eq(studies.id, studyId));
-  await tx.insert(randomizationRolls).values({ studyId, labId, seed: trimmed, algorithmVersion: schedule.algorithmVersion, scheduleHash: frozen.scheduleHash, designHash, rolledBy: actorId });
+  await tx.insert(randomizationRolls).values({ studyId, labId, seed: trimmed, seedSource, algorithmVersion: schedule.algorithmVersion, scheduleHash: frozen.scheduleHash, designHash, rolledBy: actorId, rolledAt: new Date() });
   await recordAudit(tx, {
     labId,
     actorId,
     action: d.study.state === "randomized" ? "study.rerolled" : "study.randomized",
     objectType: "study",
     objectId: studyId,
-    details: { seed: trimmed, algorithmVersion: schedule.algorithmVersion, designHash, scheduleHash: frozen.scheduleHash, runs: schedule.runs.length },
+    details: { seed: trimmed, seedSource, algorithmVersion: schedule.algorithmVersion, designHash, scheduleHash: frozen.scheduleHash, runs: schedule.runs.length },
   });
   return { schedule, designHash, scheduleHash: frozen.scheduleHash };
 }
 
-export function randomizeStudy(actorId: string, labId: string, studyId: string, seed: string) {
+export function randomizeStudy(actorId: string, labId: string, studyId: string, seed: string | null) {
   return db().transaction((tx) => randomizeStudyTx(tx, actorId, labId, studyId, seed));
 }
 

@@ -8,7 +8,7 @@ const checks = (id: string, values: [number, number][]): AnalysisRun["readings"]
   values.map(([cut, value], i) => ({ id: `${id}-${i}`, cut, position: "middle", kind: "check" as const, value }));
 
 const run = (runId: string, bladeKey: string, armKey: string, values: [number, number][], state: AnalysisRun["state"] = "ended_threshold"): AnalysisRun => ({
-  runId, bladeKey, armKey, replicate: 1, state, withdrawnReason: state === "withdrawn" ? "blade chipped at cut 2" : null, readings: checks(runId, values),
+  runId, bladeKey, armKey, replicate: 1, state, withdrawnCategory: state === "withdrawn" ? "blade_damaged" : null, withdrawnAfterEnd: false, attempt: 1, readings: checks(runId, values),
 });
 
 const input: StudyAnalysisInput = {
@@ -56,7 +56,7 @@ describe("analyzeStudy", () => {
 
   it("counts the flow and leaves the withdrawn run out with its reason", () => {
     expect(a.flow).toMatchObject({ enrolledBlades: 5, runs: 5, analysed: 4, endedAtThreshold: 4, censored: 0 });
-    expect(a.flow.withdrawn).toEqual([{ runId: "r5", bladeKey: "BBB3", reason: "blade chipped at cut 2" }]);
+    expect(a.flow.withdrawn).toEqual([{ runId: "r5", bladeKey: "BBB3", armKey: "Arm B", category: "blade_damaged", afterEnd: false }]);
   });
 
   it("draws each arm's mean curve over the runs that reached each cut", () => {

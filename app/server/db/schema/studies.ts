@@ -20,6 +20,14 @@ export const runEventKind = pgEnum("run_event_kind", [
   "withdrawn",
 ]);
 
+/**
+ * Why a run was withdrawn, reassigned or deviated: the category blinded readers see.
+ * The free-text note beside it stays with owners and leads until unblinding.
+ */
+export const reasonCategory = pgEnum("reason_category", ["blade_damaged", "medium_fault", "instrument_fault", "tester_unavailable", "protocol_deviation", "other"]);
+/** Where a study's seed came from: drawn by the server (default) or typed by the lead. */
+export const seedSource = pgEnum("seed_source", ["server", "typed"]);
+
 export type StudyState = (typeof studyState.enumValues)[number];
 export type RunState = (typeof runState.enumValues)[number];
 
@@ -62,6 +70,7 @@ export const studies = pgTable(
     preparerId: uuid("preparer_id").references(() => users.id, { onDelete: "restrict" }),
     state: studyState("state").notNull().default("draft"),
     seed: text("seed"),
+    seedSource: seedSource("seed_source"),
     algorithmVersion: integer("algorithm_version"),
     designHash: text("design_hash"),
     scheduleHash: text("schedule_hash"),
@@ -132,6 +141,7 @@ export const randomizationRolls = pgTable("randomization_rolls", {
   studyId: uuid("study_id").notNull().references(() => studies.id, { onDelete: "cascade" }),
   labId: uuid("lab_id").notNull().references(() => labs.id, { onDelete: "cascade" }),
   seed: text("seed").notNull(),
+  seedSource: seedSource("seed_source").notNull().default("typed"),
   algorithmVersion: integer("algorithm_version").notNull(),
   scheduleHash: text("schedule_hash").notNull(),
   designHash: text("design_hash").notNull(),
@@ -168,7 +178,11 @@ export const runs = pgTable(
     // so that a reading removed from the end is named too (see audit-verify).
     readingCount: integer("reading_count").notNull().default(0),
     lastReadingHash: text("last_reading_hash"),
+    // The lead's free-text note: owners and leads only until unblinding.
     withdrawnReason: text("withdrawn_reason"),
+    withdrawnCategory: reasonCategory("withdrawn_category"),
+    // The state the run had when withdrawn: a run that had ended is listed on its own in the report.
+    withdrawnFromState: runState("withdrawn_from_state"),
     startedAt: timestamp("started_at", { withTimezone: true }),
     endedAt: timestamp("ended_at", { withTimezone: true }),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
@@ -177,6 +191,7 @@ export const runs = pgTable(
     index("runs_study_position").on(t.studyId, t.schedulePosition),
     index("runs_tester").on(t.testerId, t.state),
     check("runs_withdrawn_reason", sql`${t.state} <> 'withdrawn' OR ${t.withdrawnReason} IS NOT NULL`),
+    check("runs_withdrawn_category", sql`${t.state} <> 'withdrawn' OR ${t.withdrawnCategory} IS NOT NULL`),
   ],
 );
 
@@ -229,6 +244,8 @@ export const runEvents = pgTable(
     cut: integer("cut"),
     kind: runEventKind("kind").notNull(),
     note: text("note").notNull().default(""),
+    // Withdrawals, reassignments and deviations carry a category that blinded readers see.
+    category: reasonCategory("category"),
     photoFileId: uuid("photo_file_id").references(() => storedFiles.id, { onDelete: "set null" }),
     idempotencyKey: text("idempotency_key"),
     enteredBy: uuid("entered_by").references(() => users.id, { onDelete: "set null" }),
