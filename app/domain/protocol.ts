@@ -105,6 +105,13 @@ export const EdgeForceSchema = z.object({
   confirmAtFreshSpot: yesNo,
   testerMaxGf: num("the sharpness tester's maximum reading", { minExclusive: 0, unit: "gf" }),
   capCuts: num("the cap on cuts", { int: true, min: 1, max: 100000, unit: "cuts" }),
+  /**
+   * Working-sharpness horizon K: working sharpness is the mean sharpness over the first K
+   * cuts, declared before randomization. Optional only so that versions published before
+   * it existed still parse and keep their hash; the server fills in the cap when a new
+   * draft leaves it out.
+   */
+  workingHorizonCuts: num("the working-sharpness horizon", { int: true, min: 1, max: 100000, unit: "cuts" }).optional(),
 });
 export type EdgeForceSettings = z.infer<typeof EdgeForceSchema>;
 
@@ -193,6 +200,12 @@ export const ProtocolContentSchema = ProtocolObject.superRefine((p, ctx) => {
           `The cap (${f.capCuts} cuts) must be at least one check interval (${f.checkEveryCuts} cuts), or no check would follow the baseline`,
         );
       }
+      if (f.workingHorizonCuts !== undefined && f.workingHorizonCuts > f.capCuts) {
+        add(
+          ["edgeForce", "workingHorizonCuts"],
+          `The working-sharpness horizon (${f.workingHorizonCuts} cuts) cannot be larger than the cap (${f.capCuts} cuts): no run goes past the cap. Use the cap or fewer cuts`,
+        );
+      }
       const seen = new Map<string, number>();
       f.positions.forEach((name, i) => {
         const key = name.toLowerCase();
@@ -213,7 +226,9 @@ export const ProtocolContentSchema = ProtocolObject.superRefine((p, ctx) => {
         add(["card", "totalPassMm"], `The pass mark for total card cut (${c.totalPassMm} mm) must be above the one for initial performance (${c.initialPassMm} mm)`);
       }
     }
-    if (p.edgeForce) {
+    if (p.edgeForce?.workingHorizonCuts !== undefined) {
+      add(["edgeForce", "workingHorizonCuts"], "A card-depth protocol has no working-sharpness horizon: its outcomes are taken over its strokes. Remove the horizon or choose edge force between cuts");
+    } else if (p.edgeForce) {
       add(["edgeForce", "thresholdGf"], "A card-depth protocol has a stroke count instead of a force threshold: it ends after its strokes");
     }
     if (!p.cutMethod.machine) {
@@ -257,7 +272,21 @@ export function parseProtocolContent(input: unknown): ParsedProtocol {
 export function toForceProtocol(content: ProtocolContent): ForceProtocol | null {
   const f = content.edgeForce;
   if (content.measurementKind !== "edge_force" || !f) return null;
-  return { threshold: f.thresholdGf, confirm: f.confirmAtFreshSpot, cap: f.capCuts, checkEvery: f.checkEveryCuts, aggregation: f.aggregation, positions: f.positions };
+  return {
+    threshold: f.thresholdGf, confirm: f.confirmAtFreshSpot, cap: f.capCuts, checkEvery: f.checkEveryCuts, aggregation: f.aggregation, positions: f.positions,
+    horizon: f.workingHorizonCuts ?? null,
+  };
+}
+
+/**
+ * New content declares its working-sharpness horizon: an edge-force protocol that leaves
+ * it out gets the cap (the default). Used when a draft is created or saved, never on a
+ * published version (its content and hash stay as they were).
+ */
+export function withDeclaredHorizon(content: ProtocolContent): ProtocolContent {
+  const f = content.edgeForce;
+  if (content.measurementKind !== "edge_force" || !f || f.workingHorizonCuts !== undefined) return content;
+  return { ...content, edgeForce: { ...f, workingHorizonCuts: f.capCuts } };
 }
 
 // ---------------------------------------------------------------------------
@@ -308,7 +337,8 @@ function defaultSteps(): SharpeningStep[] {
 }
 
 /**
- * The content a new draft starts with.
+ * The content a new draft starts with. The working-sharpness horizon is left out: the
+ * server declares the cap when the draft is created (withDeclaredHorizon).
  *
  * - rope: Source: docs/references.md, "The trade", common practice (no single source):
  *   a hand rope test stops at a sharpness-tester reading of a few hundred gf, 400 gf
@@ -460,6 +490,7 @@ const LABELS: Record<string, string> = {
   "edgeForce.confirmAtFreshSpot": "Confirmation reading at a fresh spot",
   "edgeForce.testerMaxGf": "Sharpness tester's maximum reading (gf)",
   "edgeForce.capCuts": "Cap on cuts",
+  "edgeForce.workingHorizonCuts": "Working-sharpness horizon (cuts)",
   card: "Card settings",
   "card.strokeCount": "Stroke count",
   "card.initialStrokes": "Strokes for initial cutting performance",

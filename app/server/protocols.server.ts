@@ -8,7 +8,7 @@ import { db, type DbOrTx, type Transaction } from "./db.server.ts";
 import { instruments, media, protocols, protocolVersions, type ProtocolVersion } from "./db/schema/index.ts";
 import { recordAudit } from "./audit.server.ts";
 import { UserFacingError } from "./accounts.server.ts";
-import { diffProtocolContent, parseProtocolContent, templateContent, type FieldChange, type ProtocolContent, type TemplateId } from "~/domain/protocol.ts";
+import { diffProtocolContent, parseProtocolContent, templateContent, withDeclaredHorizon, type FieldChange, type ProtocolContent, type TemplateId } from "~/domain/protocol.ts";
 import { protocolContentHash } from "~/domain/protocol-hash.ts";
 
 /** Thrown when stored or submitted content fails the schema: field messages by path. */
@@ -42,6 +42,11 @@ function validContent(input: unknown): ProtocolContent {
   const parsed = parseProtocolContent(input);
   if (!parsed.ok) throw new ProtocolContentError(parsed.errors);
   return parsed.content;
+}
+
+/** Content for a draft: valid, with the working-sharpness horizon declared (the cap unless given). */
+function validDraftContent(input: unknown): ProtocolContent {
+  return withDeclaredHorizon(validContent(input));
 }
 
 // ---------------------------------------------------------------------------
@@ -176,7 +181,7 @@ export async function mediumNames(labId: string, ids: (string | null)[]) {
 // Changing. The *Tx functions run inside a caller's transaction (the demo loader uses them).
 
 export async function createProtocolTx(tx: Transaction, actor: Actor | null, labId: string, input: { template: TemplateId; name: string }) {
-  const content = validContent(templateContent(input.template, input.name));
+  const content = validDraftContent(templateContent(input.template, input.name));
   const [protocol] = await tx.insert(protocols).values({ labId, name: content.name, createdBy: actor?.id ?? null }).returning();
   const [version] = await tx
     .insert(protocolVersions)
@@ -199,7 +204,7 @@ export function createProtocol(actor: Actor, labId: string, input: { template: T
 }
 
 export async function saveDraftTx(tx: Transaction, labId: string, protocolId: string, version: number, input: unknown) {
-  const content = validContent(input);
+  const content = validDraftContent(input);
   await checkMedium(tx, labId, content);
   const [row] = await tx
     .select({ id: protocolVersions.id, state: protocolVersions.state })
@@ -228,8 +233,8 @@ export async function publishVersionTx(tx: Transaction, actor: Actor, labId: str
     .limit(1);
   if (!row) notFoundError();
   if (row.state !== "draft") throw new UserFacingError(`Version ${version} is already published`, undefined, 409);
-  // Re-checked at publishing: the stored draft must still pass today's rules.
-  const content = validContent(row.content);
+  // Re-checked at publishing: the stored draft must still pass today's rules (and declare its horizon).
+  const content = validDraftContent(row.content);
   await checkMedium(tx, labId, content);
   const contentHash = protocolContentHash(content);
   const publishedAt = new Date();
@@ -267,7 +272,7 @@ export async function newDraftFromTx(tx: Transaction, actor: Actor, labId: strin
   const next = Math.max(...all.map((v) => v.version)) + 1;
   const [created] = await tx
     .insert(protocolVersions)
-    .values({ protocolId, labId, version: next, state: "draft", content: source.content, basedOnVersion: fromVersion, createdBy: actor.id })
+    .values({ protocolId, labId, version: next, state: "draft", content: withDeclaredHorizon(source.content as ProtocolContent), basedOnVersion: fromVersion, createdBy: actor.id })
     .returning();
   await recordAudit(tx, {
     labId,

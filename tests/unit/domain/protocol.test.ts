@@ -146,7 +146,7 @@ describe("templates", () => {
   it("an edge-force protocol maps onto the stop rule's settings", () => {
     const c = valid(rope());
     const p = toForceProtocol(c)!;
-    expect(p).toEqual({ threshold: 400, confirm: true, cap: 60, checkEvery: 1, aggregation: "mean", positions: ["heel", "middle", "tip"] });
+    expect(p).toEqual({ threshold: 400, confirm: true, cap: 60, checkEvery: 1, aggregation: "mean", positions: ["heel", "middle", "tip"], horizon: null });
     expect(checkSchedule(p)).toHaveLength(61);
     expect(toForceProtocol(valid(card()))).toBeNull();
     expect(stopRuleInWords(c)).toContain("400 gf");
