@@ -185,10 +185,12 @@ describe("comparison", () => {
     expect(page.status).toBe(200);
     const html = await page.text();
     const paths = [...html.matchAll(/data-path="([^"]+)"/g)].map((m) => m[1]);
-    expect(paths).toEqual(["edgeForce.capCuts", "sharpening.0.grit"]);
+    // The saved content gave no working-sharpness horizon, so it is declared at the new cap (the default): a change too.
+    expect(paths).toEqual(["edgeForce.capCuts", "edgeForce.workingHorizonCuts", "sharpening.0.grit"]);
     expect(html).toContain("Cap on cuts");
+    expect(html).toContain("Working-sharpness horizon (cuts)");
     expect(html).toContain("Sharpening step 1, grit");
-    expect(html).toContain("2 fields differ");
+    expect(html).toContain("3 fields differ");
   });
 });
 

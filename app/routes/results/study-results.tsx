@@ -4,6 +4,7 @@ import type { Route } from "./+types/study-results";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { ResultsCharts } from "~/components/results-charts.tsx";
 import { ResultsTables } from "~/components/results-tables.tsx";
+import { OutcomeDefinition, SecondaryOutcomes } from "~/components/secondary-outcomes.tsx";
 import { closedAnalysis, requireStudySummaryForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
@@ -81,7 +82,9 @@ export default function StudyResults({ loaderData, actionData }: Route.Component
               </p>
             )}
           </section>
+          <OutcomeDefinition outcome={view!.outcome} />
           <ResultsTables view={view!} />
+          <SecondaryOutcomes sections={view!.secondary} />
           <h2 className="mb-3 mt-8 text-xl font-bold">Charts</h2>
           <ResultsCharts url={`/labs/${lab.id}/api/studies/${study.id}/analysis.json`} threshold={loaderData.threshold} />
           <section className="mt-8" aria-labelledby="exports">

@@ -10,3 +10,5 @@ export function describeStopRule(content: ProtocolContent): string {
   if (!f) return "No stop rule recorded.";
   return `Baseline, then readings at ${f.positions.join(", ")} every ${f.checkEveryCuts} cut${f.checkEveryCuts === 1 ? "" : "s"}, aggregated by the ${f.aggregation}; the run ends when a check reaches ${f.thresholdGf} gf${f.confirmAtFreshSpot ? " and a confirmation reading at a fresh spot also does" : ""}, and is censored at ${f.capCuts} cuts. ${workingSharpnessRuleInWords(f.workingHorizonCuts)}`;
 }
+
+export { outcomeLabel } from "~/domain/study-analysis.ts";

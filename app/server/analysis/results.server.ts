@@ -1,4 +1,5 @@
 import type { StudyAnalysis } from "~/domain/study-analysis.ts";
+import { workingSharpnessRuleInWords } from "~/domain/outcomes.ts";
 import type { StudyRecord } from "./study-data.server.ts";
 
 /**
@@ -14,7 +15,8 @@ export function armNames(record: Pick<StudyRecord, "study" | "arms">): Map<strin
 type Interval = { lower: number; upper: number } | null;
 const iv = (m: { value: { lower: number; upper: number } | null } | undefined): Interval => (m?.value ? { lower: m.value.lower, upper: m.value.upper } : null);
 
-export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
+/** The rows of one outcome: the primary, or one secondary outcome analysed the same way. */
+function outcomeView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
   const label = (key: string) => ({ key, name: names?.get(key)?.name ?? null });
   const p = analysis.parallel;
   const arms =
@@ -66,8 +68,10 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
       dzInterval: w.dz.value ? { lower: w.dz.value.lower, upper: w.dz.value.upper } : null,
       censoredShare: w.censoredShare,
     })) ?? [];
+  const o = analysis.primaryOutcome;
   return {
-    outcome: analysis.primaryOutcome,
+    // A snapshot taken before outcomes carried their rule: working sharpness was then over each run's own length.
+    outcome: { ...o, definition: o.definition ?? (o.key === "working_sharpness" ? workingSharpnessRuleInWords(null) : null) },
     design: analysis.design,
     arms,
     comparisons,
@@ -79,6 +83,18 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
     error: analysis.error,
     nBlades: p?.nBlades ?? analysis.withinBlade?.pairs[0]?.nBlades ?? 0,
     nRuns: p?.nRuns ?? analysis.flow.analysed,
+  };
+}
+
+export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
+  return {
+    ...outcomeView(analysis, names),
+    // Each declared secondary outcome through the same rows; never the headline.
+    secondary: (analysis.secondary ?? []).map((s) => ({
+      note: s.note,
+      analysed: s.analysed,
+      ...outcomeView({ ...analysis, primaryOutcome: s.outcome as StudyAnalysis["primaryOutcome"], parallel: s.parallel, withinBlade: s.withinBlade, warnings: s.warnings, error: s.error }, names),
+    })),
   };
 }
 
