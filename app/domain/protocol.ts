@@ -340,12 +340,12 @@ function defaultSteps(): SharpeningStep[] {
  * The content a new draft starts with. The working-sharpness horizon is left out: the
  * server declares the cap when the draft is created (withDeclaredHorizon).
  *
- * - rope: Source: docs/references.md, "The trade", common practice (no single source):
+ * - rope: Source: ../shared/docs/references.md, "The trade", common practice (no single source):
  *   a hand rope test stops at a sharpness-tester reading of a few hundred gf, 400 gf
  *   being a usual mark for "dull"; a reading near the threshold is confirmed at a
  *   fresh spot; blades are taped off to the same edge length. The 60-cut cap, the
  *   2000 gf tester maximum and the 100 mm edge length are common practice too.
- * - card: Source: ISO 8442-5:2004 as summarised in docs/references.md — from memory,
+ * - card: Source: ISO 8442-5:2004 as summarised in ../shared/docs/references.md — from memory,
  *   not yet checked against the standard's text: 60 strokes, initial cutting
  *   performance over the first 3 strokes, pass marks 50 mm (initial) and 150 mm
  *   (total), load 50 N, stroke 40 mm at 50 mm/s. Marked `valuesSource: "from_memory"`.

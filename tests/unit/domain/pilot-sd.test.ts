@@ -4,7 +4,7 @@ import { pilotSdOffers, pooledSd, type PilotStudy } from "~/domain/pilot-sd.ts";
 describe("pooledSd", () => {
   it("matches the pooled SD of Borenstein et al. (2009) ch. 4's example", () => {
     // Source: Borenstein, Hedges, Higgins & Rothstein (2009), Introduction to Meta-Analysis, ch. 4 (from memory,
-    // as in docs/references.md): SDs 5.5 and 4.5 with n = 50 each give a pooled SD of 5.0249.
+    // as in ../shared/docs/references.md): SDs 5.5 and 4.5 with n = 50 each give a pooled SD of 5.0249.
     const r = pooledSd([{ n: 50, sd: 5.5 }, { n: 50, sd: 4.5 }])!;
     expect(r.sd).toBeCloseTo(5.0249, 4);
     expect(r.blades).toBe(100);
