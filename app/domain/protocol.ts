@@ -525,10 +525,17 @@ export function fieldLabel(path: string): string {
 // ---------------------------------------------------------------------------
 // Words for the bench page.
 
+/** Where a card protocol's strokes and pass marks come from, in words shown beside them. */
+export function cardValuesSourceInWords(source: CardSettings["valuesSource"]): string {
+  return source === "from_memory"
+    ? "Pass marks and stroke counts follow ISO 8442-5 from memory: check them against the standard's text before relying on them."
+    : "Pass marks and stroke counts checked against the text of ISO 8442-5.";
+}
+
 /** The stop rule of an edge-force protocol, or the end of a card test, in plain words. */
 export function stopRuleInWords(c: ProtocolContent): string {
   if (c.measurementKind === "card_depth" && c.card) {
-    return `The machine makes ${c.card.strokeCount} strokes; the run ends after the last stroke. Initial cutting performance is the card cut over the first ${c.card.initialStrokes} strokes (pass mark ${c.card.initialPassMm} mm); total card cut is the card cut over all ${c.card.strokeCount} strokes (pass mark ${c.card.totalPassMm} mm).`;
+    return `The machine makes ${c.card.strokeCount} strokes; the run ends after the last stroke. Initial cutting performance is the card cut over the first ${c.card.initialStrokes} strokes (pass mark ${c.card.initialPassMm} mm); total card cut is the card cut over all ${c.card.strokeCount} strokes (pass mark ${c.card.totalPassMm} mm). ${cardValuesSourceInWords(c.card.valuesSource)}`;
   }
   const f = c.edgeForce;
   if (!f) return "";
