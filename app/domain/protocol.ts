@@ -108,8 +108,8 @@ export const EdgeForceSchema = z.object({
   /**
    * Working-sharpness horizon K: working sharpness is the mean sharpness over the first K
    * cuts, declared before randomization. Optional only so that versions published before
-   * it existed still parse and keep their hash; the server fills in the cap when a new
-   * draft leaves it out.
+   * it existed still parse and keep their hash; the server declares the cap when a draft
+   * that leaves it out is published.
    */
   workingHorizonCuts: num("the working-sharpness horizon", { int: true, min: 1, max: 100000, unit: "cuts" }).optional(),
 });
@@ -280,8 +280,8 @@ export function toForceProtocol(content: ProtocolContent): ForceProtocol | null 
 
 /**
  * New content declares its working-sharpness horizon: an edge-force protocol that leaves
- * it out gets the cap (the default). Used when a draft is created or saved, never on a
- * published version (its content and hash stay as they were).
+ * it out gets the cap (the default). Used when a draft is published, never on a version
+ * already published (its content and hash stay as they were).
  */
 export function withDeclaredHorizon(content: ProtocolContent): ProtocolContent {
   const f = content.edgeForce;
@@ -337,8 +337,8 @@ function defaultSteps(): SharpeningStep[] {
 }
 
 /**
- * The content a new draft starts with. The working-sharpness horizon is left out: the
- * server declares the cap when the draft is created (withDeclaredHorizon).
+ * The content a new draft starts with. The working-sharpness horizon is left out: it
+ * follows the cap until the draft is published, when the cap is declared (withDeclaredHorizon).
  *
  * - rope: Source: ../shared/docs/references.md, "The trade", common practice (no single source):
  *   a hand rope test stops at a sharpness-tester reading of a few hundred gf, 400 gf

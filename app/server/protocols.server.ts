@@ -44,8 +44,11 @@ function validContent(input: unknown): ProtocolContent {
   return parsed.content;
 }
 
-/** Content for a draft: valid, with the working-sharpness horizon declared (the cap unless given). */
-function validDraftContent(input: unknown): ProtocolContent {
+/**
+ * Content to publish: valid, with the working-sharpness horizon declared (the cap unless
+ * given). Drafts may leave it empty, so that it follows the cap while the draft is edited.
+ */
+function validPublishedContent(input: unknown): ProtocolContent {
   return withDeclaredHorizon(validContent(input));
 }
 
@@ -181,7 +184,7 @@ export async function mediumNames(labId: string, ids: (string | null)[]) {
 // Changing. The *Tx functions run inside a caller's transaction (the demo loader uses them).
 
 export async function createProtocolTx(tx: Transaction, actor: Actor | null, labId: string, input: { template: TemplateId; name: string }) {
-  const content = validDraftContent(templateContent(input.template, input.name));
+  const content = validContent(templateContent(input.template, input.name));
   const [protocol] = await tx.insert(protocols).values({ labId, name: content.name, createdBy: actor?.id ?? null }).returning();
   const [version] = await tx
     .insert(protocolVersions)
@@ -204,7 +207,7 @@ export function createProtocol(actor: Actor, labId: string, input: { template: T
 }
 
 export async function saveDraftTx(tx: Transaction, labId: string, protocolId: string, version: number, input: unknown) {
-  const content = validDraftContent(input);
+  const content = validContent(input);
   await checkMedium(tx, labId, content);
   const [row] = await tx
     .select({ id: protocolVersions.id, state: protocolVersions.state })
@@ -234,7 +237,7 @@ export async function publishVersionTx(tx: Transaction, actor: Actor, labId: str
   if (!row) notFoundError();
   if (row.state !== "draft") throw new UserFacingError(`Version ${version} is already published`, undefined, 409);
   // Re-checked at publishing: the stored draft must still pass today's rules (and declare its horizon).
-  const content = validDraftContent(row.content);
+  const content = validPublishedContent(row.content);
   await checkMedium(tx, labId, content);
   const contentHash = protocolContentHash(content);
   const publishedAt = new Date();
@@ -272,7 +275,7 @@ export async function newDraftFromTx(tx: Transaction, actor: Actor, labId: strin
   const next = Math.max(...all.map((v) => v.version)) + 1;
   const [created] = await tx
     .insert(protocolVersions)
-    .values({ protocolId, labId, version: next, state: "draft", content: withDeclaredHorizon(source.content as ProtocolContent), basedOnVersion: fromVersion, createdBy: actor.id })
+    .values({ protocolId, labId, version: next, state: "draft", content: source.content, basedOnVersion: fromVersion, createdBy: actor.id })
     .returning();
   await recordAudit(tx, {
     labId,

@@ -185,7 +185,7 @@ describe("comparison", () => {
     expect(page.status).toBe(200);
     const html = await page.text();
     const paths = [...html.matchAll(/data-path="([^"]+)"/g)].map((m) => m[1]);
-    // The saved content gave no working-sharpness horizon, so it is declared at the new cap (the default): a change too.
+    // The saved draft gives no working-sharpness horizon (it follows the cap until published), where version 1 declared 60 cuts: a change too.
     expect(paths).toEqual(["edgeForce.capCuts", "edgeForce.workingHorizonCuts", "sharpening.0.grit"]);
     expect(html).toContain("Cap on cuts");
     expect(html).toContain("Working-sharpness horizon (cuts)");
@@ -257,7 +257,7 @@ describe("16.4 the working-sharpness horizon in protocol versions", () => {
   it("a new version declares the cap by default, a horizon past the cap gets a field message, and a version without one says so", async () => {
     const { client, labId, protocolId } = await publishedProtocol();
     const v1 = await versionRow(protocolId, 1);
-    // Saved without a horizon: the server declared the cap (60 cuts), and the published hash covers exactly that content.
+    // Published without a horizon: the server declared the cap (60 cuts), and the published hash covers exactly that content.
     expect((v1.content as ProtocolContent).edgeForce!.workingHorizonCuts).toBe(60);
     expect(v1.contentHash).toBe(canonicalHash(v1.content));
     const page = (await (await client.get(`${base(labId)}/${protocolId}/versions/1`)).text()).replace(/<!-- -->/g, "");
