@@ -2,7 +2,6 @@ import { Link } from "react-router";
 import type { Route } from "./+types/report";
 import { ResultsTables } from "~/components/results-tables.tsx";
 import { OutcomeDefinition, SecondaryOutcomes } from "~/components/secondary-outcomes.tsx";
-
 import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { reportDetails } from "~/server/analysis/report.server.ts";
