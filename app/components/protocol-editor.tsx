@@ -74,6 +74,7 @@ function toState(c: ProtocolContent): EditorState {
       confirmAtFreshSpot: f.confirmAtFreshSpot,
       testerMaxGf: str(f.testerMaxGf),
       capCuts: str(f.capCuts),
+      workingHorizonCuts: str(f.workingHorizonCuts),
     },
     card: {
       strokeCount: str(k.strokeCount),
@@ -104,7 +105,10 @@ export function toContentInput(s: EditorState) {
     },
     edgeLengthMm: s.edgeLengthMm,
     replicatesPerBlade: s.replicatesPerBlade,
-    edgeForce: edge ? { ...s.edgeForce, positions: s.edgeForce.positions.map((p) => p.value) } : null,
+    // An empty horizon is left out: the server declares the cap, the default.
+    edgeForce: edge
+      ? { ...s.edgeForce, workingHorizonCuts: s.edgeForce.workingHorizonCuts.trim() === "" ? undefined : s.edgeForce.workingHorizonCuts, positions: s.edgeForce.positions.map((p) => p.value) }
+      : null,
     card: edge ? null : s.card,
     sharpening: s.sharpening.map((x) => x.value),
     safetyChecklist: s.safetyChecklist.map((x) => x.value),
@@ -321,6 +325,15 @@ export function ProtocolEditor({
               value={s.edgeForce.capCuts}
               error={e("edgeForce.capCuts")}
               onChange={(v) => update((d) => ({ ...d, edgeForce: { ...d.edgeForce, capCuts: v } }))}
+            />
+            <Text
+              label="Working-sharpness horizon"
+              unit="cuts"
+              numeric
+              hint="Working sharpness is the mean sharpness over the first K cuts; a run that ends before K is carried at its last check. Declare it before randomization; empty means the cap."
+              value={s.edgeForce.workingHorizonCuts}
+              error={e("edgeForce.workingHorizonCuts")}
+              onChange={(v) => update((d) => ({ ...d, edgeForce: { ...d.edgeForce, workingHorizonCuts: v } }))}
             />
           </div>
           <ListHeading id="positions-title" title="Reading positions along the edge, in order" error={e("edgeForce.positions")} />

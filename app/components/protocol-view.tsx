@@ -1,4 +1,5 @@
 // Read-only views of a protocol version: the full record and the state badge.
+import { workingSharpnessRuleInWords } from "~/domain/outcomes.ts";
 import { MEASUREMENT_KIND_LABELS, stepInWords, stopRuleInWords, type ProtocolContent } from "~/domain/protocol.ts";
 
 /** The state in words and shape, not colour alone. */
@@ -66,6 +67,16 @@ export function ProtocolRecord({ content, mediumName }: { content: ProtocolConte
           </Row>
           <Row term="Cap">
             <span className="figures">{f.capCuts}</span> cuts (censored there)
+          </Row>
+          <Row term="Working-sharpness horizon">
+            <span data-testid="working-horizon">
+              {f.workingHorizonCuts !== undefined ? (
+                <>
+                  <span className="figures">{f.workingHorizonCuts}</span> cuts.{" "}
+                </>
+              ) : null}
+              {workingSharpnessRuleInWords(f.workingHorizonCuts)}
+            </span>
           </Row>
         </>
       ) : null}

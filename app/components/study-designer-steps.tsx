@@ -202,6 +202,7 @@ function OutcomesStep({ data, errors }: { data: DesignData; errors: Record<strin
       </fieldset>
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 font-bold">Secondary outcomes</legend>
+        <p className="text-sm text-graphite-600">Each is analysed like the primary in its own section, with no adjustment across outcomes: read as supportive.</p>
         {options.map((o) => (
           <Choice key={o} type="checkbox" name="secondaryOutcomes" value={o} checked={data.study.secondaryOutcomes.includes(o)} title={OUTCOMES[o].label} />
         ))}

@@ -78,7 +78,10 @@ export const BundleRawSchema = z.object({
     contentHash: hash.nullable(),
     measurementKind: z.enum(["edge_force", "card_depth"]),
     edgeForce: z
-      .object({ thresholdGf: z.number(), confirmAtFreshSpot: z.boolean(), capCuts: z.number().int(), checkEveryCuts: z.number().int(), aggregation: z.enum(["mean", "median"]), positions: z.array(z.string()) })
+      .object({
+        thresholdGf: z.number(), confirmAtFreshSpot: z.boolean(), capCuts: z.number().int(), checkEveryCuts: z.number().int(), aggregation: z.enum(["mean", "median"]), positions: z.array(z.string()),
+        workingHorizonCuts: z.number().int().min(1).nullable().optional().describe("working-sharpness horizon K in cuts; null or absent: the protocol version declared none (working sharpness over each run's own length, the older definition)"),
+      })
       .nullable(),
     card: z.object({ strokeCount: z.number().int(), initialStrokes: z.number().int(), initialPassMm: z.number(), totalPassMm: z.number() }).nullable(),
     content: z.record(z.string(), z.unknown()),
@@ -125,7 +128,10 @@ export function analysisInputFromRaw(raw: BundleRaw): StudyAnalysisInput {
     design: raw.study.design,
     measurementKind: p.measurementKind,
     primaryOutcome: raw.study.primaryOutcome,
-    forceProtocol: f ? { threshold: f.thresholdGf, confirm: f.confirmAtFreshSpot, cap: f.capCuts, checkEvery: f.checkEveryCuts, aggregation: f.aggregation, positions: f.positions } : null,
+    secondaryOutcomes: raw.study.secondaryOutcomes,
+    forceProtocol: f
+      ? { threshold: f.thresholdGf, confirm: f.confirmAtFreshSpot, cap: f.capCuts, checkEvery: f.checkEveryCuts, aggregation: f.aggregation, positions: f.positions, horizon: f.workingHorizonCuts ?? null }
+      : null,
     card: p.card ? { strokes: p.card.strokeCount, initialStrokes: p.card.initialStrokes, initialPassMark: p.card.initialPassMm, totalPassMark: p.card.totalPassMm } : null,
     alpha: raw.study.analysisPlan.alpha,
     comparisons: raw.study.analysisPlan.comparisons,

@@ -65,6 +65,21 @@ export const ASTM_E140_HRC_TO_HV: readonly (readonly [hrc: number, hv: number])[
   [68, 940], // from memory
 ];
 
+/** The whole-HRC rows of ASTM_E140_HRC_TO_HV given in ../shared/docs/references.md (ASTM E140); the rest are from memory. */
+export const ASTM_E140_CONFIRMED_HRC: ReadonlySet<number> = new Set([55, 57, 58, 60, 62, 63, 64, 65]);
+
+/**
+ * Whether the HV shown for a Rockwell C value rests only on rows given in the
+ * references ("confirmed") or on a row recalled from memory ("from memory"): an
+ * interpolated value uses the two whole-HRC rows either side, a whole value its own row.
+ * @throws Error as hrcToHv does (non-finite, or outside 20–68 HRC)
+ */
+export function hvConversionSource(hrc: number): "confirmed" | "from memory" {
+  hrcToHv(hrc);
+  const rows = Number.isInteger(hrc) ? [hrc] : [Math.floor(hrc), Math.floor(hrc) + 1];
+  return rows.every((r) => ASTM_E140_CONFIRMED_HRC.has(r)) ? "confirmed" : "from memory";
+}
+
 /** The lowest HRC the conversion table covers. */
 export const HRC_TABLE_MIN = 20;
 /** The highest HRC the conversion table covers. */

@@ -80,6 +80,12 @@ export interface ForceProtocol {
   aggregation: "mean" | "median";
   /** Positions read at every check, e.g. ["heel", "middle", "tip"]. */
   positions: readonly string[];
+  /**
+   * Working-sharpness horizon K in cuts, declared in the protocol before randomization
+   * (1..cap). Absent or null in protocol versions written before the horizon existed:
+   * working sharpness is then taken over each run's own length (the older definition).
+   */
+  horizon?: number | null;
 }
 
 /** One check: its readings aggregated. */
@@ -145,6 +151,14 @@ export function validateForceProtocol(p: ForceProtocol): void {
   }
   if (!Array.isArray(p.positions) || p.positions.length === 0) throw new Error("protocol: at least one position is needed");
   if (new Set(p.positions).size !== p.positions.length) throw new Error("protocol: positions must be distinct");
+  if (p.horizon !== undefined && p.horizon !== null) {
+    if (!Number.isInteger(p.horizon) || p.horizon < 1) {
+      throw new Error(`protocol: the working-sharpness horizon must be a whole number of cuts >= 1, got ${String(p.horizon)}`);
+    }
+    if (p.horizon > p.cap) {
+      throw new Error(`protocol: the working-sharpness horizon (${p.horizon} cuts) is larger than the cap (${p.cap} cuts); no run goes past the cap`);
+    }
+  }
 }
 
 /**
@@ -448,8 +462,15 @@ export interface ForceRunOutcomes {
   interpolation: { fromCut: number; fromAggregate: number; toCut: number; toAggregate: number } | null;
   /** Cut of the run's last check. */
   lastCheckCut: number;
-  /** Trapezoid mean of the aggregate over cuts 0..lastCheckCut (gf); null for a failed sharpening. */
+  /**
+   * Working sharpness (gf); null for a failed sharpening. With a declared horizon K: the
+   * trapezoid mean of the aggregate over cuts 0..K, a run that ended before K carried at
+   * its last aggregate to K. Without one (older protocol versions): the trapezoid mean
+   * over cuts 0..lastCheckCut, each run's own length.
+   */
   workingSharpness: number | null;
+  /** The horizon K the working sharpness is taken over; null: over the run's own length (older definition). */
+  workingHorizon: number | null;
   /** Null for a failed sharpening. */
   lossRate: LossRate | null;
   checks: CheckAggregate[];
@@ -482,6 +503,63 @@ export function trapezoidMean(x: readonly number[], y: readonly number[]): numbe
     area += ((x[i] - x[i - 1]) * (y[i] + y[i - 1])) / 2;
   }
   return area / (x[x.length - 1] - x[0]);
+}
+
+/**
+ * Working sharpness over a fixed horizon of K cuts: the trapezoid mean of the check
+ * aggregates over cuts 0..K. A run whose last check comes before K (it ended at
+ * threshold) is carried at its last aggregate for the rest of the horizon; a run with
+ * checks beyond K is cut at K, the aggregate at K taken by linear interpolation between
+ * the checks either side. So a run that dulls early is charged for the cuts it did not
+ * last, and every run is averaged over the same cuts (docs/statistics.md, "Working
+ * sharpness over a fixed horizon").
+ * @param checks the run's checks, ascending by cut, the first at cut 0
+ * @param horizon K, a whole number of cuts >= 1
+ * @throws Error naming the problem: no checks, the first not at cut 0, cuts not strictly
+ *   increasing, a non-finite aggregate, or K not a whole number >= 1
+ */
+export function workingSharpnessOverHorizon(checks: readonly { cut: number; aggregate: number }[], horizon: number): number {
+  if (!Number.isInteger(horizon) || horizon < 1) {
+    throw new Error(`workingSharpnessOverHorizon: the horizon must be a whole number of cuts >= 1, got ${String(horizon)}`);
+  }
+  if (checks.length === 0) throw new Error("workingSharpnessOverHorizon: the run has no checks");
+  if (checks[0].cut !== 0) throw new Error(`workingSharpnessOverHorizon: the first check must be the baseline at cut 0, got cut ${checks[0].cut}`);
+  for (let i = 0; i < checks.length; i++) {
+    if (!Number.isFinite(checks[i].aggregate)) throw new Error(`workingSharpnessOverHorizon: the aggregate at cut ${checks[i].cut} is not a finite number`);
+    if (i > 0 && !(checks[i].cut > checks[i - 1].cut)) throw new Error("workingSharpnessOverHorizon: check cuts must be strictly increasing");
+  }
+  const xs: number[] = [];
+  const ys: number[] = [];
+  for (const c of checks) {
+    if (c.cut > horizon) break;
+    xs.push(c.cut);
+    ys.push(c.aggregate);
+  }
+  const lastX = xs[xs.length - 1];
+  if (lastX < horizon) {
+    const after = checks[xs.length];
+    if (after) {
+      // The run went past K: the aggregate at K lies on the line between the checks either side.
+      const y0 = ys[ys.length - 1];
+      ys.push(y0 + ((after.aggregate - y0) * (horizon - lastX)) / (after.cut - lastX));
+    } else {
+      // The run ended before K: carried at its last aggregate for the rest of the horizon.
+      ys.push(ys[ys.length - 1]);
+    }
+    xs.push(horizon);
+  }
+  return trapezoidMean(xs, ys);
+}
+
+/**
+ * The rule of working sharpness in words, for every place the outcome is named.
+ * @param horizon the protocol's declared K, or null/undefined for a version without one
+ */
+export function workingSharpnessRuleInWords(horizon: number | null | undefined): string {
+  if (horizon === null || horizon === undefined) {
+    return "Horizon not declared: working sharpness over each run's own length (older definition). A run that dulls early is averaged over fewer cuts, so this figure barely measures edge retention.";
+  }
+  return `Working sharpness is the mean sharpness (trapezoid mean of the check aggregates, gf) over a fixed horizon of the first ${horizon} cut${horizon === 1 ? "" : "s"}, declared in the protocol before randomization; a run that ended before cut ${horizon} is carried at its last aggregate for the rest of the horizon. Lower is sharper.`;
 }
 
 /**
@@ -518,7 +596,8 @@ export function leastSquaresSlope(x: readonly number[], y: readonly number[]): L
  * (the baseline aggregate); cuts to threshold, by linear interpolation between the check
  * that ended the run and the last check before it whose aggregate was below T (an
  * unconfirmed check at or above T in between is skipped), or the cap when censored;
- * working sharpness, the trapezoid mean of the aggregate over cuts 0..last check; loss
+ * working sharpness, the trapezoid mean of the aggregate over cuts 0..K when the protocol
+ * declares a horizon K (workingSharpnessOverHorizon), else over cuts 0..last check; loss
  * rate, the least-squares slope of the aggregate on cuts with its SE; failed sharpening
  * when the baseline aggregate is >= T (then only the baseline is reported).
  * @param protocol stop-rule settings
@@ -535,12 +614,13 @@ export function forceRunOutcomes(protocol: ForceProtocol, readings: readonly For
     throw new Error(`forceRunOutcomes: the run has not ended; it needs ${what}`);
   }
   const checks = st.checks;
+  const horizon = protocol.horizon ?? null;
   const baseline = checks[0].aggregate;
   const last = checks[checks.length - 1];
   if (st.failedSharpening) {
     return {
       status: "failed-sharpening", failedSharpening: true, censored: false, baseline,
-      cutsToThreshold: null, interpolation: null, lastCheckCut: 0, workingSharpness: null, lossRate: null,
+      cutsToThreshold: null, interpolation: null, lastCheckCut: 0, workingSharpness: null, workingHorizon: horizon, lossRate: null,
       checks, warnings: st.warnings,
     };
   }
@@ -565,7 +645,8 @@ export function forceRunOutcomes(protocol: ForceProtocol, readings: readonly For
     cutsToThreshold,
     interpolation,
     lastCheckCut: last.cut,
-    workingSharpness: trapezoidMean(xs, ys),
+    workingSharpness: horizon === null ? trapezoidMean(xs, ys) : workingSharpnessOverHorizon(checks, horizon),
+    workingHorizon: horizon,
     lossRate: leastSquaresSlope(xs, ys),
     checks,
     warnings: st.warnings,

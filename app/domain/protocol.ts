@@ -106,6 +106,13 @@ export const EdgeForceSchema = z.object({
   confirmAtFreshSpot: yesNo,
   testerMaxGf: num("the sharpness tester's maximum reading", { minExclusive: 0, max: 100_000, unit: "gf" }),
   capCuts: num("the cap on cuts", { int: true, min: 1, max: 100000, unit: "cuts" }),
+  /**
+   * Working-sharpness horizon K: working sharpness is the mean sharpness over the first K
+   * cuts, declared before randomization. Optional only so that versions published before
+   * it existed still parse and keep their hash; the server declares the cap when a draft
+   * that leaves it out is published.
+   */
+  workingHorizonCuts: num("the working-sharpness horizon", { int: true, min: 1, max: 100000, unit: "cuts" }).optional(),
 });
 export type EdgeForceSettings = z.infer<typeof EdgeForceSchema>;
 
@@ -194,6 +201,12 @@ export const ProtocolContentSchema = ProtocolObject.superRefine((p, ctx) => {
           `The cap (${f.capCuts} cuts) must be at least one check interval (${f.checkEveryCuts} cuts), or no check would follow the baseline`,
         );
       }
+      if (f.workingHorizonCuts !== undefined && f.workingHorizonCuts > f.capCuts) {
+        add(
+          ["edgeForce", "workingHorizonCuts"],
+          `The working-sharpness horizon (${f.workingHorizonCuts} cuts) cannot be larger than the cap (${f.capCuts} cuts): no run goes past the cap. Use the cap or fewer cuts`,
+        );
+      }
       const seen = new Map<string, number>();
       f.positions.forEach((name, i) => {
         const key = name.toLowerCase();
@@ -214,7 +227,9 @@ export const ProtocolContentSchema = ProtocolObject.superRefine((p, ctx) => {
         add(["card", "totalPassMm"], `The pass mark for total card cut (${c.totalPassMm} mm) must be above the one for initial performance (${c.initialPassMm} mm)`);
       }
     }
-    if (p.edgeForce) {
+    if (p.edgeForce?.workingHorizonCuts !== undefined) {
+      add(["edgeForce", "workingHorizonCuts"], "A card-depth protocol has no working-sharpness horizon: its outcomes are taken over its strokes. Remove the horizon or choose edge force between cuts");
+    } else if (p.edgeForce) {
       add(["edgeForce", "thresholdGf"], "A card-depth protocol has a stroke count instead of a force threshold: it ends after its strokes");
     }
     if (!p.cutMethod.machine) {
@@ -258,7 +273,21 @@ export function parseProtocolContent(input: unknown): ParsedProtocol {
 export function toForceProtocol(content: ProtocolContent): ForceProtocol | null {
   const f = content.edgeForce;
   if (content.measurementKind !== "edge_force" || !f) return null;
-  return { threshold: f.thresholdGf, confirm: f.confirmAtFreshSpot, cap: f.capCuts, checkEvery: f.checkEveryCuts, aggregation: f.aggregation, positions: f.positions };
+  return {
+    threshold: f.thresholdGf, confirm: f.confirmAtFreshSpot, cap: f.capCuts, checkEvery: f.checkEveryCuts, aggregation: f.aggregation, positions: f.positions,
+    horizon: f.workingHorizonCuts ?? null,
+  };
+}
+
+/**
+ * New content declares its working-sharpness horizon: an edge-force protocol that leaves
+ * it out gets the cap (the default). Used when a draft is published, never on a version
+ * already published (its content and hash stay as they were).
+ */
+export function withDeclaredHorizon(content: ProtocolContent): ProtocolContent {
+  const f = content.edgeForce;
+  if (content.measurementKind !== "edge_force" || !f || f.workingHorizonCuts !== undefined) return content;
+  return { ...content, edgeForce: { ...f, workingHorizonCuts: f.capCuts } };
 }
 
 // ---------------------------------------------------------------------------
@@ -309,14 +338,15 @@ function defaultSteps(): SharpeningStep[] {
 }
 
 /**
- * The content a new draft starts with.
+ * The content a new draft starts with. The working-sharpness horizon is left out: it
+ * follows the cap until the draft is published, when the cap is declared (withDeclaredHorizon).
  *
- * - rope: Source: docs/references.md, "The trade", common practice (no single source):
+ * - rope: Source: ../shared/docs/references.md, "The trade", common practice (no single source):
  *   a hand rope test stops at a sharpness-tester reading of a few hundred gf, 400 gf
  *   being a usual mark for "dull"; a reading near the threshold is confirmed at a
  *   fresh spot; blades are taped off to the same edge length. The 60-cut cap, the
  *   2000 gf tester maximum and the 100 mm edge length are common practice too.
- * - card: Source: ISO 8442-5:2004 as summarised in docs/references.md — from memory,
+ * - card: Source: ISO 8442-5:2004 as summarised in ../shared/docs/references.md — from memory,
  *   not yet checked against the standard's text: 60 strokes, initial cutting
  *   performance over the first 3 strokes, pass marks 50 mm (initial) and 150 mm
  *   (total), load 50 N, stroke 40 mm at 50 mm/s. Marked `valuesSource: "from_memory"`.
@@ -461,6 +491,7 @@ const LABELS: Record<string, string> = {
   "edgeForce.confirmAtFreshSpot": "Confirmation reading at a fresh spot",
   "edgeForce.testerMaxGf": "Sharpness tester's maximum reading (gf)",
   "edgeForce.capCuts": "Cap on cuts",
+  "edgeForce.workingHorizonCuts": "Working-sharpness horizon (cuts)",
   card: "Card settings",
   "card.strokeCount": "Stroke count",
   "card.initialStrokes": "Strokes for initial cutting performance",
@@ -495,10 +526,17 @@ export function fieldLabel(path: string): string {
 // ---------------------------------------------------------------------------
 // Words for the bench page.
 
+/** Where a card protocol's strokes and pass marks come from, in words shown beside them. */
+export function cardValuesSourceInWords(source: CardSettings["valuesSource"]): string {
+  return source === "from_memory"
+    ? "Pass marks and stroke counts follow ISO 8442-5 from memory: check them against the standard's text before relying on them."
+    : "Pass marks and stroke counts checked against the text of ISO 8442-5.";
+}
+
 /** The stop rule of an edge-force protocol, or the end of a card test, in plain words. */
 export function stopRuleInWords(c: ProtocolContent): string {
   if (c.measurementKind === "card_depth" && c.card) {
-    return `The machine makes ${c.card.strokeCount} strokes; the run ends after the last stroke. Initial cutting performance is the card cut over the first ${c.card.initialStrokes} strokes (pass mark ${c.card.initialPassMm} mm); total card cut is the card cut over all ${c.card.strokeCount} strokes (pass mark ${c.card.totalPassMm} mm).`;
+    return `The machine makes ${c.card.strokeCount} strokes; the run ends after the last stroke. Initial cutting performance is the card cut over the first ${c.card.initialStrokes} strokes (pass mark ${c.card.initialPassMm} mm); total card cut is the card cut over all ${c.card.strokeCount} strokes (pass mark ${c.card.totalPassMm} mm). ${cardValuesSourceInWords(c.card.valuesSource)}`;
   }
   const f = c.edgeForce;
   if (!f) return "";

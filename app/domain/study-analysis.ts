@@ -6,7 +6,7 @@
  * unblinding: unblinding only adds names beside the labels. Plain TypeScript, no I/O,
  * so the re-analysis command recomputes exactly what the app stored.
  */
-import { cardRunOutcomes, forceRunOutcomes, resolveCorrections, type ForceProtocol, type ForceReading, type ForceRunOutcomes, type CardRunOutcomes } from "./outcomes.ts";
+import { cardRunOutcomes, forceRunOutcomes, resolveCorrections, workingSharpnessRuleInWords, type ForceProtocol, type ForceReading, type ForceRunOutcomes, type CardRunOutcomes } from "./outcomes.ts";
 import { analyzeParallelArms, analyzeWithinBlade, type ParallelAnalysis, type RunOutcomeRecord, type WithinBladeAnalysis } from "./stats/arm-analysis.ts";
 import { holmAdjust } from "./stats/holm.ts";
 import type { ReasonCategory } from "./reason-categories.ts";
@@ -22,6 +22,19 @@ export const PRIMARY_OUTCOMES = {
   total_card_cut: { label: "Total card cut", unit: "mm", kind: "card_depth" },
 } as const;
 export type PrimaryOutcome = keyof typeof PRIMARY_OUTCOMES;
+
+/** An outcome's human name, e.g. "working_sharpness" → "Working sharpness"; unknown ids come back as given. */
+export function outcomeLabel(key: string): string {
+  return (PRIMARY_OUTCOMES as Record<string, { label: string }>)[key]?.label ?? key;
+}
+
+/** The outcome's rule in words where its definition depends on the protocol (working sharpness), else null. */
+export function outcomeDefinition(key: PrimaryOutcome, forceProtocol: ForceProtocol | null): string | null {
+  return key === "working_sharpness" ? workingSharpnessRuleInWords(forceProtocol?.horizon ?? null) : null;
+}
+
+/** Words every secondary section carries: it supports the primary, it never replaces it. */
+export const SECONDARY_NOTE = "Secondary: no adjustment across outcomes; read as supportive.";
 
 export type AnalysisRun = {
   runId: string;
@@ -45,6 +58,8 @@ export type StudyAnalysisInput = {
   design: "parallel" | "within_blade";
   measurementKind: "edge_force" | "card_depth";
   primaryOutcome: PrimaryOutcome;
+  /** Declared secondary outcomes, each analysed like the primary in its own section (none when absent). */
+  secondaryOutcomes?: readonly string[];
   forceProtocol: ForceProtocol | null;
   card: { strokes: number; initialStrokes: number; initialPassMark: number | null; totalPassMark: number | null } | null;
   alpha: number;
@@ -73,9 +88,22 @@ export type RunResult = {
   error: string | null;
 };
 
+/** One secondary outcome, analysed with the same machinery as the primary. */
+export type SecondaryOutcomeAnalysis = {
+  outcome: { key: string; label: string; unit: string; definition: string | null };
+  /** Always SECONDARY_NOTE: no adjustment across outcomes. */
+  note: string;
+  parallel: ParallelAnalysis | null;
+  withinBlade: { pairs: (WithinBladeAnalysis & { pPairedHolm: number | null })[] } | null;
+  /** Runs with a value for this outcome. */
+  analysed: number;
+  warnings: string[];
+  error: string | null;
+};
+
 export type StudyAnalysis = {
   analysisVersion: number;
-  primaryOutcome: { key: PrimaryOutcome; label: string; unit: string };
+  primaryOutcome: { key: PrimaryOutcome; label: string; unit: string; definition: string | null };
   design: StudyAnalysisInput["design"];
   runs: RunResult[];
   parallel: ParallelAnalysis | null;
@@ -95,6 +123,8 @@ export type StudyAnalysis = {
   };
   warnings: string[];
   error: string | null;
+  /** Declared secondary outcomes in the order declared; never the headline. */
+  secondary: SecondaryOutcomeAnalysis[];
 };
 
 export type FlowWithdrawal = { runId: string; bladeKey: string; armKey: string; category: ReasonCategory | null; afterEnd: boolean };
@@ -206,34 +236,42 @@ export function armCurves(runs: readonly Pick<RunResult, "armKey" | "curve">[], 
   });
 }
 
-/** The study's analysis; never throws for data problems: they come back as `error` and `warnings`. */
-export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
-  const meta = PRIMARY_OUTCOMES[input.primaryOutcome];
-  const runs = runResults(input);
+type OutcomeCore = {
+  parallel: ParallelAnalysis | null;
+  withinBlade: StudyAnalysis["withinBlade"];
+  warnings: string[];
+  error: string | null;
+  records: RunOutcomeRecord[];
+  excluded: { runId: string; reason: string }[];
+};
+
+/** One outcome over the runs: the blade-as-unit comparisons of a parallel design, or the paired ones of a within-blade design. */
+function analyzeOutcome(input: StudyAnalysisInput, runs: RunResult[], key: PrimaryOutcome, seed: string): OutcomeCore {
   const warnings: string[] = [];
   const excluded: { runId: string; reason: string }[] = [];
-  for (const r of runs) {
+  const valued = runs.map((r) => ({ r, ...(key === input.primaryOutcome ? { value: r.value, censored: r.censored } : primaryValue(key, r.force, r.card)) }));
+  for (const { r, value } of valued) {
     if (r.error) excluded.push({ runId: r.runId, reason: r.error });
-    else if (r.state !== "withdrawn" && r.value === null) excluded.push({ runId: r.runId, reason: r.force?.failedSharpening ? "failed sharpening on its last attempt" : "no value for the primary outcome" });
+    else if (r.state !== "withdrawn" && value === null) excluded.push({ runId: r.runId, reason: r.force?.failedSharpening ? "failed sharpening on its last attempt" : `no value for ${key === input.primaryOutcome ? "the primary outcome" : outcomeLabel(key).toLowerCase()}` });
   }
   if (excluded.length) warnings.push(`${excluded.length} run(s) are left out of the analysis: ${excluded.map((e) => e.reason).join("; ")}`);
-  const records: RunOutcomeRecord[] = runs
-    .filter((r) => r.value !== null)
-    .map((r) => ({ runId: r.runId, bladeId: r.bladeKey, arm: r.armKey, value: r.value!, censored: r.censored }));
+  const records: RunOutcomeRecord[] = valued
+    .filter((v) => v.value !== null)
+    .map(({ r, value, censored }) => ({ runId: r.runId, bladeId: r.bladeKey, arm: r.armKey, value: value!, censored }));
 
   let parallel: ParallelAnalysis | null = null;
   let withinBlade: StudyAnalysis["withinBlade"] = null;
   let error: string | null = null;
   try {
-    if (records.length === 0) throw new Error("no run has a value for the primary outcome");
+    if (records.length === 0) throw new Error(`no run has a value for ${key === input.primaryOutcome ? "the primary outcome" : outcomeLabel(key).toLowerCase()}`);
     if (input.design === "parallel") {
       parallel = analyzeParallelArms(records, {
-        seed: `${input.seed}/analysis`,
+        seed,
         alpha: input.alpha,
         mode: input.comparisons === "vs_reference" ? "vs-reference" : "all-pairs",
         reference: input.comparisons === "vs_reference" ? (input.referenceArmKey ?? undefined) : undefined,
-        survival: input.primaryOutcome === "cuts_to_threshold",
-        tau: input.primaryOutcome === "cuts_to_threshold" && input.forceProtocol ? input.forceProtocol.cap : undefined,
+        survival: key === "cuts_to_threshold",
+        tau: key === "cuts_to_threshold" && input.forceProtocol ? input.forceProtocol.cap : undefined,
       });
       // Arms in label order, so Arm A comes first everywhere.
       parallel.arms.sort((a, b) => a.arm.localeCompare(b.arm));
@@ -257,13 +295,42 @@ export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
   } catch (e) {
     error = e instanceof Error ? e.message : String(e);
   }
+  return { parallel, withinBlade, warnings, error, records, excluded };
+}
+
+/**
+ * The declared secondary outcomes, each through analyzeOutcome like the primary, with its
+ * own bootstrap stream (so the primary's figures do not depend on what else is declared).
+ * An outcome the protocol does not measure, or an unknown one, comes back with an error.
+ */
+function analyzeSecondary(input: StudyAnalysisInput, runs: RunResult[]): SecondaryOutcomeAnalysis[] {
+  const declared = [...new Set(input.secondaryOutcomes ?? [])].filter((k) => k !== input.primaryOutcome);
+  return declared.map((key) => {
+    const meta = (PRIMARY_OUTCOMES as Record<string, { label: string; unit: string; kind: string }>)[key];
+    if (!meta) {
+      return { outcome: { key, label: key, unit: "", definition: null }, note: SECONDARY_NOTE, parallel: null, withinBlade: null, analysed: 0, warnings: [], error: `"${key}" is not an outcome Blindcut knows` };
+    }
+    const outcome = { key, label: meta.label, unit: meta.unit, definition: outcomeDefinition(key as PrimaryOutcome, input.forceProtocol) };
+    if (meta.kind !== input.measurementKind) {
+      return { outcome, note: SECONDARY_NOTE, parallel: null, withinBlade: null, analysed: 0, warnings: [], error: `${meta.label} is not measured by ${input.measurementKind === "card_depth" ? "a card-depth" : "an edge-force"} protocol` };
+    }
+    const core = analyzeOutcome(input, runs, key as PrimaryOutcome, `${input.seed}/analysis/secondary/${key}`);
+    return { outcome, note: SECONDARY_NOTE, parallel: core.parallel, withinBlade: core.withinBlade, analysed: core.records.length, warnings: [...new Set(core.warnings)], error: core.error };
+  });
+}
+
+/** The study's analysis; never throws for data problems: they come back as `error` and `warnings`. */
+export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
+  const meta = PRIMARY_OUTCOMES[input.primaryOutcome];
+  const runs = runResults(input);
+  const { parallel, withinBlade, warnings, error, records, excluded } = analyzeOutcome(input, runs, input.primaryOutcome, `${input.seed}/analysis`);
 
   const withdrawn: FlowWithdrawal[] = runs
     .filter((r) => r.state === "withdrawn")
     .map((r) => ({ runId: r.runId, bladeKey: r.bladeKey, armKey: r.armKey, category: r.withdrawnCategory, afterEnd: r.withdrawnAfterEnd }));
   return {
     analysisVersion: ANALYSIS_VERSION,
-    primaryOutcome: { key: input.primaryOutcome, label: meta.label, unit: meta.unit },
+    primaryOutcome: { key: input.primaryOutcome, label: meta.label, unit: meta.unit, definition: outcomeDefinition(input.primaryOutcome, input.forceProtocol) },
     design: input.design,
     runs,
     parallel,
@@ -282,5 +349,6 @@ export function analyzeStudy(input: StudyAnalysisInput): StudyAnalysis {
     },
     warnings: [...new Set(warnings)],
     error,
+    secondary: analyzeSecondary(input, runs),
   };
 }

@@ -10,6 +10,9 @@ export const PLAN_UNITS = {
 } as const;
 export type PlanUnit = keyof typeof PLAN_UNITS;
 
+/** The unit the analysis names each planner unit by (PRIMARY_OUTCOMES' units): pilot SDs are matched on it. */
+export const PLAN_UNIT_ANALYSIS_UNIT: Record<PlanUnit, string> = { cuts: "cuts", gf: "gf", "gf-per-cut": "gf per cut", mm: "mm" };
+
 export const PLAN_DESIGNS = {
   "two-sample": { label: "Parallel arms: each blade in one of two arms", counted: "blades per arm" },
   paired: { label: "Within-blade: every blade under both of two conditions", counted: "blades" },

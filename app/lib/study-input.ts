@@ -6,7 +6,7 @@ import { SharpeningStepSchema, type MeasurementKind } from "~/domain/protocol.ts
 // The outcome keys are the analysis core's (app/domain/study-analysis.ts, PRIMARY_OUTCOMES).
 export const OUTCOMES: Record<string, { label: string; text: string; kind: MeasurementKind }> = {
   cuts_to_threshold: { label: "Cuts to threshold", text: "Cuts until the edge reaches the protocol's threshold, censored at the cap", kind: "edge_force" },
-  working_sharpness: { label: "Working sharpness", text: "The mean edge force over the run (gf; lower is sharper)", kind: "edge_force" },
+  working_sharpness: { label: "Working sharpness", text: "The mean edge force over the protocol's declared horizon of K cuts, a run that ends early carried at its last check (gf; lower is sharper); over each run's own length where an older protocol version declares no horizon", kind: "edge_force" },
   baseline_sharpness: { label: "Baseline sharpness", text: "The edge force before the first cut (gf)", kind: "edge_force" },
   loss_rate: { label: "Loss rate", text: "How fast the edge force rises (gf per cut)", kind: "edge_force" },
   initial_cutting_performance: { label: "Initial cutting performance", text: "Card cut by the first strokes (mm)", kind: "card_depth" },

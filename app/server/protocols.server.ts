@@ -8,7 +8,7 @@ import { db, type DbOrTx, type Transaction } from "./db.server.ts";
 import { instruments, media, protocols, protocolVersions, type ProtocolVersion } from "./db/schema/index.ts";
 import { recordAudit } from "./audit.server.ts";
 import { UserFacingError } from "./accounts.server.ts";
-import { diffProtocolContent, parseProtocolContent, templateContent, type FieldChange, type ProtocolContent, type TemplateId } from "~/domain/protocol.ts";
+import { diffProtocolContent, parseProtocolContent, templateContent, withDeclaredHorizon, type FieldChange, type ProtocolContent, type TemplateId } from "~/domain/protocol.ts";
 import { protocolContentHash } from "~/domain/protocol-hash.ts";
 
 /** Thrown when stored or submitted content fails the schema: field messages by path. */
@@ -42,6 +42,14 @@ function validContent(input: unknown): ProtocolContent {
   const parsed = parseProtocolContent(input);
   if (!parsed.ok) throw new ProtocolContentError(parsed.errors);
   return parsed.content;
+}
+
+/**
+ * Content to publish: valid, with the working-sharpness horizon declared (the cap unless
+ * given). Drafts may leave it empty, so that it follows the cap while the draft is edited.
+ */
+function validPublishedContent(input: unknown): ProtocolContent {
+  return withDeclaredHorizon(validContent(input));
 }
 
 // ---------------------------------------------------------------------------
@@ -228,8 +236,8 @@ export async function publishVersionTx(tx: Transaction, actor: Actor, labId: str
     .limit(1);
   if (!row) notFoundError();
   if (row.state !== "draft") throw new UserFacingError(`Version ${version} is already published`, undefined, 409);
-  // Re-checked at publishing: the stored draft must still pass today's rules.
-  const content = validContent(row.content);
+  // Re-checked at publishing: the stored draft must still pass today's rules (and declare its horizon).
+  const content = validPublishedContent(row.content);
   await checkMedium(tx, labId, content);
   const contentHash = protocolContentHash(content);
   const publishedAt = new Date();

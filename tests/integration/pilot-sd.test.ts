@@ -29,4 +29,27 @@ describe("the sample-size planner offers the SD of a finished study", () => {
     // The offer never names arms: the planner is for leads, but it works from the blinded snapshot.
     for (const name of f.ids.armNames) expect(html).not.toContain(name);
   });
+
+  it("16.7 offers only a study whose primary outcome is in the planned unit, naming its protocol version, blades, replicates and censoring", async () => {
+    const f = await createStudyFixture({ replicates: 2, cap: 20 });
+    const planner = `/labs/${f.labId}/planning/sample-size`;
+    await finishAllRuns(f, 20);
+    expect((await f.lead.client.post(`/labs/${f.labId}/studies/${f.studyId}/results`, { intent: "close" })).status).toBe(302);
+    const [study] = await db().select().from(studies).where(eq(studies.id, f.studyId));
+    const analysis = (study.blindedSnapshot as { analysis: StudyAnalysis }).analysis;
+    expect(analysis.primaryOutcome.unit).toBe("cuts");
+    const html = (await (await f.lead.client.get(`${planner}?design=two-sample&unit=cuts&sd=30&difference=30&alpha=0.05&power=0.8`)).text()).replace(/<!-- -->/g, "");
+    expect(html).toContain(`Fixture study ${f.tag} measured an SD of`);
+    expect(html).toContain("for cuts to threshold (its primary outcome)");
+    expect(html).toMatch(/over \d+ blades and \d+ runs, 2 replicates per blade averaged/);
+    expect(html).toMatch(/, version \d+; [\d.]+ % of runs censored/);
+    const censored = analysis.parallel!.arms.reduce((t, a) => t + a.nCensoredRuns, 0);
+    expect(html.includes("this SD is too small")).toBe(censored > 0);
+    // Planning in gf or mm: a study measured in cuts is not offered.
+    for (const unit of ["gf", "mm"]) {
+      const other = (await (await f.lead.client.get(`${planner}?design=two-sample&unit=${unit}&sd=30&difference=30&alpha=0.05&power=0.8`)).text()).replace(/<!-- -->/g, "");
+      expect(other).not.toContain(`Fixture study ${f.tag} measured an SD of`);
+      expect(other).toContain("No finished study to take an SD from with a primary outcome in");
+    }
+  });
 });

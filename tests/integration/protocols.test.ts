@@ -185,10 +185,12 @@ describe("comparison", () => {
     expect(page.status).toBe(200);
     const html = await page.text();
     const paths = [...html.matchAll(/data-path="([^"]+)"/g)].map((m) => m[1]);
-    expect(paths).toEqual(["edgeForce.capCuts", "sharpening.0.grit"]);
+    // The saved draft gives no working-sharpness horizon (it follows the cap until published), where version 1 declared 60 cuts: a change too.
+    expect(paths).toEqual(["edgeForce.capCuts", "edgeForce.workingHorizonCuts", "sharpening.0.grit"]);
     expect(html).toContain("Cap on cuts");
+    expect(html).toContain("Working-sharpness horizon (cuts)");
     expect(html).toContain("Sharpening step 1, grit");
-    expect(html).toContain("2 fields differ");
+    expect(html).toContain("3 fields differ");
   });
 });
 
@@ -248,5 +250,47 @@ describe("roles and lab isolation", () => {
     }
     expect((await b.client.get(base(labA))).status).toBe(404);
     expect(await (await b.client.get(base(b.labId))).text()).not.toContain("Rope test");
+  });
+});
+
+describe("16.4 the working-sharpness horizon in protocol versions", () => {
+  it("a new version declares the cap by default, a horizon past the cap gets a field message, and a version without one says so", async () => {
+    const { client, labId, protocolId } = await publishedProtocol();
+    const v1 = await versionRow(protocolId, 1);
+    // Published without a horizon: the server declared the cap (60 cuts), and the published hash covers exactly that content.
+    expect((v1.content as ProtocolContent).edgeForce!.workingHorizonCuts).toBe(60);
+    expect(v1.contentHash).toBe(canonicalHash(v1.content));
+    const page = (await (await client.get(`${base(labId)}/${protocolId}/versions/1`)).text()).replace(/<!-- -->/g, "");
+    expect(page).toContain("Working-sharpness horizon");
+    expect(page).toContain("over a fixed horizon of the first 60 cuts, declared in the protocol before randomization");
+
+    await client.post(`${base(labId)}/${protocolId}`, { intent: "new-draft", fromVersion: "1" });
+    const tooLong = templateContent("rope", "Rope test");
+    tooLong.edgeForce!.workingHorizonCuts = 90;
+    const refused = await saveVersion(client, labId, protocolId, 2, tooLong);
+    expect(refused.status).toBe(400);
+    expect((await refused.text()).replace(/<!-- -->/g, "")).toContain("The working-sharpness horizon (90 cuts) cannot be larger than the cap (60 cuts)");
+    expect((await versionRow(protocolId, 2)).content).toEqual(v1.content);
+
+    // A version published before the horizon existed: its content has no horizon, its hash is unchanged, and its page says so.
+    const older = templateContent("rope", "Rope test, older");
+    const [row] = await db()
+      .insert(protocolVersions)
+      .values({ protocolId, labId, version: 9, state: "published", content: older, contentHash: canonicalHash(older), publishedAt: new Date() })
+      .returning();
+    expect(row.contentHash).toBe(canonicalHash(JSON.parse(JSON.stringify(older))));
+    const olderPage = (await (await client.get(`${base(labId)}/${protocolId}/versions/9`)).text()).replace(/<!-- -->/g, "").replace(/&#x27;/g, "'");
+    expect(olderPage).toContain("Horizon not declared: working sharpness over each run's own length (older definition)");
+  });
+
+  it("16.11 the bench print page of a card protocol marks its ISO 8442-5 values from memory", async () => {
+    const owner = await signUp("Card Owner");
+    const protocolId = await createProtocol(owner.client, owner.labId, "card", "Card test");
+    const published = await saveVersion(owner.client, owner.labId, protocolId, 1, templateContent("card", "Card test"), "publish");
+    expect(published.status).toBe(302);
+    const print = (await (await owner.client.get(`${base(owner.labId)}/${protocolId}/versions/1/print`)).text()).replace(/<!-- -->/g, "").replace(/&#x27;/g, "'");
+    // Source: ISO 8442-5:2004 as summarised in ../shared/docs/references.md (from memory): pass marks 50 mm and 150 mm.
+    expect(print).toContain("pass mark 50 mm");
+    expect(print).toContain("Pass marks and stroke counts follow ISO 8442-5 from memory");
   });
 });

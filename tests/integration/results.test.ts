@@ -132,6 +132,40 @@ describe("closing, results and unblinding", () => {
     expect(html).toContain("Hedges&#x27; g");
   });
 
+  it("16.5 each declared secondary outcome has its own section on the results page, report and bundle, read as supportive", async () => {
+    const f = await createStudyFixture({ replicates: 2, cap: 20 });
+    await db().update(studies).set({ secondaryOutcomes: ["working_sharpness", "baseline_sharpness"] }).where(eq(studies.id, f.studyId));
+    await finishAllRuns(f, 20);
+    await f.lead.client.post(`/labs/${f.labId}/studies/${f.studyId}/results`, { intent: "close" });
+    const text = (r: Response) => r.text().then((t) => t.replace(/<!-- -->/g, "").replace(/&#x27;/g, "'"));
+    const html = await text(await f.analyst.client.get(`/labs/${f.labId}/studies/${f.studyId}/results`));
+    expect(html).toContain("Secondary outcomes");
+    expect(html).toContain("Secondary: no adjustment across outcomes; read as supportive.");
+    expect(html).toContain("Working sharpness (gf)");
+    expect(html).toContain("Baseline sharpness (gf)");
+    // The fixture's protocol version was published through the app, so it declares its cap (20 cuts) as the horizon.
+    expect(html).toContain("over a fixed horizon of the first 20 cuts");
+    // The headline stays the primary outcome: its table comes first.
+    expect(html.indexOf("Cuts to threshold by arm")).toBeLessThan(html.indexOf("Secondary outcomes"));
+    const report = await text(await f.analyst.client.get(`/labs/${f.labId}/studies/${f.studyId}/report`));
+    expect(report).toContain("Secondary: Working sharpness, Baseline sharpness");
+    // Raw ids stay in the page's data and element ids, never in the text it shows.
+    expect(report.replace(/<script[\s\S]*?<\/script>/g, "").replace(/<[^>]+>/g, " ")).not.toContain("working_sharpness");
+    expect(report).toContain("Secondary: no adjustment across outcomes; read as supportive.");
+    const bundleText = await (await f.analyst.client.get(`/labs/${f.labId}/api/studies/${f.studyId}/bundle.json`)).text();
+    const bundle = JSON.parse(bundleText);
+    const secondary = bundle.analysis.secondary as { outcome: { key: string }; parallel: { arms: { arm: string; descriptives: { mean: number } }[] } }[];
+    expect(secondary.map((s) => s.outcome.key)).toEqual(["working_sharpness", "baseline_sharpness"]);
+    // Source: simple-statistics (independent library): the secondary arm means equal the blade means of the per-run baseline in the outcomes CSV.
+    const outcomes = Papa.parse<Record<string, string>>(await (await f.analyst.client.get(`/labs/${f.labId}/api/studies/${f.studyId}/outcomes.csv`)).text(), { header: true, skipEmptyLines: true }).data;
+    for (const arm of secondary[1].parallel.arms) {
+      const byBlade = new Map<string, number[]>();
+      for (const row of outcomes.filter((o) => o.arm_label === arm.arm)) byBlade.set(row.blade_code, [...(byBlade.get(row.blade_code) ?? []), Number(row.baseline_gf)]);
+      expect(arm.descriptives.mean).toBeCloseTo(ss.mean([...byBlade.values()].map((v) => ss.mean(v))), 8);
+    }
+    expect(reanalyze(bundleText).ok).toBe(true);
+  });
+
   it("testers never read results (403), another lab gets 404, and a running study shows no outcomes", async () => {
     const f = await createStudyFixture();
     const other = await createStudyFixture();

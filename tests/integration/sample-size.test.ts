@@ -41,7 +41,8 @@ describe("sample-size planner: the numbers", () => {
   });
 
   it("a within-blade design counts blades: d_z = 0.5 needs 34 blades", async () => {
-    // Source: from memory, the usual paired-t table value (d_z = 0.5, two-sided 0.05, power 0.80: 34 pairs).
+    // Source: from memory (no published table at hand): R's stats::power.t.test(delta = 0.5, sd = 1, power = 0.8,
+    // type = "paired") gives n = 33.37 pairs for d_z = 0.5, two-sided alpha 0.05, which rounds up to 34.
     const { client, labId } = await signUp();
     const html = await (await client.get(page(labId, { design: "paired", unit: "gf", sd: "40", difference: "20", alpha: "0.05", power: "0.8" }))).text();
     expect(figure(html, "proposed-n")).toBe("34");

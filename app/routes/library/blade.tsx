@@ -7,7 +7,7 @@ import { MANAGERS, notFound, requireLabRole, isUuid } from "~/server/access.serv
 import { addCustodyEvent, custodyLog, getBlade, LibraryError } from "~/server/library.server.ts";
 import { BLADE_STATUS_LABELS, CUSTODY_KINDS, CUSTODY_LABELS, CustodyInput } from "~/lib/library-input.ts";
 import { parseForm } from "~/lib/forms.ts";
-import { hrcToHv, summarizeHardness, HRC_TABLE_MAX, HRC_TABLE_MIN } from "~/domain/hardness.ts";
+import { hrcToHv, hvConversionSource, summarizeHardness, HRC_TABLE_MAX, HRC_TABLE_MIN } from "~/domain/hardness.ts";
 import { readFormData } from "~/server/form-data.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.blade.inventoryNumber ?? "Blade"} · Blindcut` }];
@@ -18,8 +18,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (!blade) notFound();
   const custody = await custodyLog(lab.id, blade.id);
   const hardness = blade.hardnessHrc.length ? summarizeHardness(blade.hardnessHrc) : null;
-  const hv = hardness && hardness.mean >= HRC_TABLE_MIN && hardness.mean <= HRC_TABLE_MAX ? Math.round(hrcToHv(hardness.mean)) : null;
-  return { lab, blade, custody, hardness, hv, today: new Date().toISOString().slice(0, 10) };
+  const inTable = hardness && hardness.mean >= HRC_TABLE_MIN && hardness.mean <= HRC_TABLE_MAX;
+  const hv = inTable ? Math.round(hrcToHv(hardness.mean)) : null;
+  const hvSource = inTable ? hvConversionSource(hardness.mean) : null;
+  return { lab, blade, custody, hardness, hv, hvSource, today: new Date().toISOString().slice(0, 10) };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -43,7 +45,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 const fmt = (v: number | null, digits = 1) => (v === null ? "—" : v.toFixed(digits));
 
 export default function BladePage({ loaderData, actionData }: Route.ComponentProps) {
-  const { lab, blade, custody, hardness, hv } = loaderData;
+  const { lab, blade, custody, hardness, hv, hvSource } = loaderData;
   const holder = custody[0];
   const errors: Record<string, string> = actionData?.errors ?? {};
   return (
@@ -66,7 +68,11 @@ export default function BladePage({ loaderData, actionData }: Route.ComponentPro
               {hardness ? (
                 <>
                   mean {hardness.mean.toFixed(1)} HRC
-                  {hv !== null ? <span className="text-graphite-600"> (≈ {hv} HV, approximate, ASTM E140)</span> : null}
+                  {hv !== null ? (
+                    <span className="text-graphite-600" data-testid="hv-conversion">
+                      {" "}(≈ {hv} HV, approximate, ASTM E140 table 1{hvSource === "from memory" ? "; row from memory: check against the standard" : "; rows as in the project's references"})
+                    </span>
+                  ) : null}
                   <br />
                   <span className="text-graphite-600">
                     {hardness.n} reading{hardness.n === 1 ? "" : "s"}: {blade.hardnessHrc.join(", ")} · SD {fmt(hardness.sd, 2)} · range {hardness.range.toFixed(1)}

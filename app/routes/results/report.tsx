@@ -1,11 +1,13 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/report";
 import { ResultsTables } from "~/components/results-tables.tsx";
+import { OutcomeDefinition, SecondaryOutcomes } from "~/components/secondary-outcomes.tsx";
 import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { reportDetails } from "~/server/analysis/report.server.ts";
 import { FlowDiagram, FlowPerArmTable } from "~/components/flow-per-arm.tsx";
 import { reasonCategoryLabel } from "~/domain/reason-categories.ts";
+import { outcomeLabel } from "~/server/analysis/report-words.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Report · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -18,7 +20,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     lab,
     study: {
       id: study.id, shortName: study.shortName, question: study.question, hypothesis: study.hypothesis, design: study.design, state: study.state,
-      primaryOutcome: study.primaryOutcome, secondaryOutcomes: study.secondaryOutcomes, plan: study.analysisPlan,
+      primaryOutcome: study.primaryOutcome, secondaryOutcomes: study.secondaryOutcomes.map(outcomeLabel), plan: study.analysisPlan,
       startedAt: study.startedAt?.toISOString() ?? null, closedAt: study.closedAt?.toISOString() ?? null, unblindedAt: study.unblindedAt?.toISOString() ?? null,
     },
     arms: record.arms.map((a) => ({ label: a.neutralLabel ?? "", name: names?.get(a.neutralLabel ?? "")?.name ?? null, description: names?.get(a.neutralLabel ?? "")?.description ?? null })),
@@ -50,7 +52,8 @@ export default function Report({ loaderData }: Route.ComponentProps) {
       <Section title="Question and hypothesis">
         <p><strong>Question.</strong> {study.question}</p>
         <p className="mt-1"><strong>Hypothesis.</strong> {study.hypothesis || "—"}</p>
-        <p className="mt-1"><strong>Primary outcome.</strong> {view.outcome.label} ({view.outcome.unit}). Secondary: {study.secondaryOutcomes.join(", ") || "none"}.</p>
+        <p className="mt-1"><strong>Primary outcome.</strong> {view.outcome.label} ({view.outcome.unit}). Secondary: {study.secondaryOutcomes.join(", ") || "none"} (each analysed below in its own section, read as supportive).</p>
+        <OutcomeDefinition outcome={view.outcome} />
         <p className="mt-1"><strong>Analysis plan.</strong> alpha {study.plan?.alpha ?? "—"}, comparisons {study.plan?.comparisons === "vs_reference" ? "each arm against the reference" : "every pair"}, Holm's adjustment.</p>
       </Section>
 
@@ -121,6 +124,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
 
       <Section title="Outcomes and comparisons">
         <ResultsTables view={view} />
+        <SecondaryOutcomes sections={view.secondary} />
       </Section>
 
       <Section title="Deviations">

@@ -5,6 +5,7 @@ import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { ResultsCharts } from "~/components/results-charts.tsx";
 import { ResultsTables } from "~/components/results-tables.tsx";
 import { FlowPerArmTable } from "~/components/flow-per-arm.tsx";
+import { OutcomeDefinition, SecondaryOutcomes } from "~/components/secondary-outcomes.tsx";
 import { closedAnalysis, requireStudySummaryForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
@@ -82,11 +83,13 @@ export default function StudyResults({ loaderData, actionData }: Route.Component
               </p>
             )}
           </section>
+          <OutcomeDefinition outcome={view!.outcome} />
           <ResultsTables view={view!} />
           <section className="mt-8" aria-labelledby="flow-per-arm">
             <h2 id="flow-per-arm" className="mb-2 text-xl font-bold">Flow of blades and runs per {view!.design === "within_blade" ? "condition" : "arm"}</h2>
             <FlowPerArmTable flow={view!.flow.perArm} design={view!.design} />
           </section>
+          <SecondaryOutcomes sections={view!.secondary} />
           <h2 className="mb-3 mt-8 text-xl font-bold">Charts</h2>
           <ResultsCharts url={`/labs/${lab.id}/api/studies/${study.id}/analysis.json`} threshold={loaderData.threshold} />
           <section className="mt-8" aria-labelledby="exports">

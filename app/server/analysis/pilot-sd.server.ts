@@ -1,23 +1,44 @@
-import { and, desc, eq, inArray } from "drizzle-orm";
+import { and, desc, eq, inArray, sql } from "drizzle-orm";
 import { db } from "../db.server.ts";
-import { studies } from "../db/schema/index.ts";
-import { pooledSd } from "~/domain/pilot-sd.ts";
+import { protocolVersions, studies } from "../db/schema/index.ts";
+import { pilotSdOffers, type PilotStudy } from "~/domain/pilot-sd.ts";
+import type { ProtocolContent } from "~/domain/protocol.ts";
 import type { StudyAnalysis } from "~/domain/study-analysis.ts";
 
-/** The pooled SD of blade means from the lab's most recent finished parallel study, to plan the next one with. */
-export async function latestPilotSd(labId: string) {
+/**
+ * The pilot SDs the lab's finished parallel studies offer in one outcome unit: the latest
+ * study for each primary outcome in that unit, with its protocol version, blades,
+ * replicates and censored share (pilotSdOffers).
+ */
+export async function pilotSdOffersFor(labId: string, unit: string) {
   const rows = await db()
-    .select({ shortName: studies.shortName, snapshot: studies.blindedSnapshot })
+    // Only the parts of the snapshot the offer needs: the per-run analysis is most of its size.
+    .select({
+      shortName: studies.shortName,
+      primaryOutcome: sql<StudyAnalysis["primaryOutcome"] | null>`${studies.blindedSnapshot} #> '{analysis,primaryOutcome}'`,
+      arms: sql<NonNullable<StudyAnalysis["parallel"]>["arms"] | null>`${studies.blindedSnapshot} #> '{analysis,parallel,arms}'`,
+      protocolVersion: protocolVersions.version,
+      content: protocolVersions.content,
+    })
     .from(studies)
+    .leftJoin(protocolVersions, eq(protocolVersions.id, studies.protocolVersionId))
     .where(and(eq(studies.labId, labId), eq(studies.design, "parallel"), inArray(studies.state, ["closed", "unblinded"])))
     .orderBy(desc(studies.closedAt))
-    .limit(5);
+    .limit(20);
+  const candidates: PilotStudy[] = [];
   for (const row of rows) {
-    const analysis = (row.snapshot as { analysis?: StudyAnalysis } | null)?.analysis;
-    const arms = analysis?.parallel?.arms;
-    if (!arms?.length) continue;
-    const pooled = pooledSd(arms.filter((a) => a.descriptives.sd !== null).map((a) => ({ n: a.nBlades, sd: a.descriptives.sd! })));
-    if (pooled && pooled.sd > 0) return { sd: pooled.sd, unit: analysis!.primaryOutcome.unit, studyName: row.shortName, blades: pooled.blades };
+    const outcome = row.primaryOutcome;
+    const arms = row.arms;
+    if (!outcome || !arms?.length) continue;
+    const content = row.content as ProtocolContent | null;
+    candidates.push({
+      studyName: row.shortName,
+      protocolName: content?.name ?? "protocol not recorded",
+      protocolVersion: row.protocolVersion ?? 0,
+      outcome: { key: outcome.key, label: outcome.label, unit: outcome.unit },
+      replicatesPerBlade: content?.replicatesPerBlade ?? 1,
+      arms: arms.map((a) => ({ nBlades: a.nBlades, sd: a.descriptives.sd, nRuns: a.nRuns, nCensoredRuns: a.nCensoredRuns })),
+    });
   }
-  return null;
+  return pilotSdOffers(candidates, unit);
 }

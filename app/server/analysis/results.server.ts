@@ -1,4 +1,5 @@
 import type { StudyAnalysis } from "~/domain/study-analysis.ts";
+import { workingSharpnessRuleInWords } from "~/domain/outcomes.ts";
 import type { StudyRecord } from "./study-data.server.ts";
 
 /**
@@ -19,7 +20,8 @@ export const HOLM_NOTE = "Holm p is adjusted for the comparisons in this table; 
 
 type KmMedianView = { estimate: number | null; lower: number | null; upper: number | null; reached: boolean; rule: string | null };
 
-export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
+/** The rows of one outcome: the primary, or one secondary outcome analysed the same way. */
+function outcomeView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
   const label = (key: string) => ({ key, name: names?.get(key)?.name ?? null });
   const p = analysis.parallel;
   const rmstOf = (arm: string) => {
@@ -89,8 +91,10 @@ export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof ar
       nCensoredRuns: w.nCensoredRuns,
       censorWarning: w.censorWarning ?? null,
     })) ?? [];
+  const o = analysis.primaryOutcome;
   return {
-    outcome: analysis.primaryOutcome,
+    // A snapshot taken before outcomes carried their rule: working sharpness was then over each run's own length.
+    outcome: { ...o, definition: o.definition ?? (o.key === "working_sharpness" ? workingSharpnessRuleInWords(null) : null) },
     design: analysis.design,
     arms,
     comparisons,
@@ -125,6 +129,18 @@ function kmMedianView(m: { estimate: number | null; lower: number | null; upper:
 export function atRiskCuts(horizon: number): number[] {
   if (!Number.isFinite(horizon) || horizon <= 0) throw new Error(`atRiskCuts: the horizon must be a finite number > 0, got ${String(horizon)}`);
   return [0, 0.25, 0.5, 0.75, 1].map((f) => Math.round(f * horizon));
+}
+
+export function resultsView(analysis: StudyAnalysis, names: ReturnType<typeof armNames>) {
+  return {
+    ...outcomeView(analysis, names),
+    // Each declared secondary outcome through the same rows; never the headline.
+    secondary: (analysis.secondary ?? []).map((s) => ({
+      note: s.note,
+      analysed: s.analysed,
+      ...outcomeView({ ...analysis, primaryOutcome: s.outcome as StudyAnalysis["primaryOutcome"], parallel: s.parallel, withinBlade: s.withinBlade, warnings: s.warnings, error: s.error }, names),
+    })),
+  };
 }
 
 /** The numbers the charts draw, arms by label (and name after unblinding). */

@@ -96,7 +96,7 @@ export function bundleRaw(record: StudyRecord): BundleRaw {
       version: protocol.version,
       contentHash: protocol.contentHash,
       measurementKind: content.measurementKind,
-      edgeForce: f ? { thresholdGf: f.thresholdGf, confirmAtFreshSpot: f.confirmAtFreshSpot, capCuts: f.capCuts, checkEveryCuts: f.checkEveryCuts, aggregation: f.aggregation, positions: [...f.positions] } : null,
+      edgeForce: f ? { thresholdGf: f.thresholdGf, confirmAtFreshSpot: f.confirmAtFreshSpot, capCuts: f.capCuts, checkEveryCuts: f.checkEveryCuts, aggregation: f.aggregation, positions: [...f.positions], workingHorizonCuts: f.workingHorizonCuts ?? null } : null,
       card: content.card ? { strokeCount: content.card.strokeCount, initialStrokes: content.card.initialStrokes, initialPassMm: content.card.initialPassMm, totalPassMm: content.card.totalPassMm } : null,
       content: content as unknown as Record<string, unknown>,
     },

@@ -19,11 +19,12 @@ export async function loadDemoProtocols(tx: Transaction, labId: string, leadId: 
   await saveDraftTx(tx, labId, rope.protocol.id, 1, ropeV1);
   await publishVersionTx(tx, lead, labId, rope.protocol.id, 1);
 
-  // Rope, version 2: checks every second cut, a higher cap and a longer finishing step.
+  // Rope, version 2: checks every second cut, a higher cap, a declared working-sharpness
+  // horizon of 40 cuts (version 1 takes the default, its cap) and a longer finishing step.
   await newDraftFromTx(tx, lead, labId, rope.protocol.id, 1);
   const ropeV2 = {
     ...ropeV1,
-    edgeForce: { ...ropeV1.edgeForce!, checkEveryCuts: 2, capCuts: 80 },
+    edgeForce: { ...ropeV1.edgeForce!, checkEveryCuts: 2, capCuts: 80, workingHorizonCuts: 40 },
     sharpening: ropeV1.sharpening.map((s, i) => (i === 1 ? { ...s, amount: 30 } : s)),
   };
   await saveDraftTx(tx, labId, rope.protocol.id, 2, ropeV2);

@@ -118,7 +118,7 @@ function sortDeep(v: unknown): unknown {
 
 describe("templates", () => {
   it("the rope template is the common-practice hand rope test", () => {
-    // Source: docs/references.md, "The trade", common practice: 400 gf mark, confirmation at a fresh spot.
+    // Source: ../shared/docs/references.md, "The trade", common practice: 400 gf mark, confirmation at a fresh spot.
     const c = valid(rope());
     expect(c.measurementKind).toBe("edge_force");
     expect(c.edgeForce).toMatchObject({ checkEveryCuts: 1, positions: ["heel", "middle", "tip"], thresholdGf: 400, confirmAtFreshSpot: true, capCuts: 60 });
@@ -127,7 +127,7 @@ describe("templates", () => {
   });
 
   it("the card template carries the ISO 8442-5 values, marked from memory", () => {
-    // Source: ISO 8442-5:2004 as summarised in docs/references.md (from memory, not checked against the standard's text).
+    // Source: ISO 8442-5:2004 as summarised in ../shared/docs/references.md (from memory, not checked against the standard's text).
     const c = valid(card());
     expect(c.measurementKind).toBe("card_depth");
     expect(c.card).toEqual({ strokeCount: 60, initialStrokes: 3, initialPassMm: 50, totalPassMm: 150, valuesSource: "from_memory" });
@@ -146,7 +146,7 @@ describe("templates", () => {
   it("an edge-force protocol maps onto the stop rule's settings", () => {
     const c = valid(rope());
     const p = toForceProtocol(c)!;
-    expect(p).toEqual({ threshold: 400, confirm: true, cap: 60, checkEvery: 1, aggregation: "mean", positions: ["heel", "middle", "tip"] });
+    expect(p).toEqual({ threshold: 400, confirm: true, cap: 60, checkEvery: 1, aggregation: "mean", positions: ["heel", "middle", "tip"], horizon: null });
     expect(checkSchedule(p)).toHaveLength(61);
     expect(toForceProtocol(valid(card()))).toBeNull();
     expect(stopRuleInWords(c)).toContain("400 gf");

@@ -5,22 +5,25 @@ import { PowerCurveChart, percent } from "~/components/power-curve-chart.tsx";
 import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import type { SampleSizePlan } from "~/domain/sample-size-plan.ts";
 import type { FieldErrors } from "~/lib/forms.ts";
-import { PLAN_DEFAULTS, PLAN_DESIGNS, PLAN_UNITS, type SampleSizeForm } from "~/lib/sample-size-input.ts";
+import { PLAN_DEFAULTS, PLAN_DESIGNS, PLAN_UNIT_ANALYSIS_UNIT, PLAN_UNITS, type PlanUnit, type SampleSizeForm } from "~/lib/sample-size-input.ts";
 import { planFromQuery } from "~/server/sample-size.server.ts";
-import { latestPilotSd } from "~/server/analysis/pilot-sd.server.ts";
+import { pilotSdOffersFor } from "~/server/analysis/pilot-sd.server.ts";
+import type { PilotSdOffer } from "~/domain/pilot-sd.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sample size · Blindcut" }];
 
 /**
- * The SD measured in a finished study of the same protocol, offered as the SD to plan
- * with: the pooled SD of blade means of the lab's latest finished parallel study.
+ * SDs measured in the lab's finished parallel studies, offered as the SD to plan with:
+ * only studies whose primary outcome is in the unit being planned, the latest for each
+ * outcome, with what the SD rests on.
  */
-export type PilotSd = { sd: number; unit: string; studyName: string; blades: number } | null;
+export type PilotSd = { unitKey: PlanUnit; offers: PilotSdOffer[] };
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, MANAGERS);
-  const pilotSd: PilotSd = await latestPilotSd(lab.id);
   const outcome = planFromQuery(new URL(request.url).searchParams);
+  const unitKey = (Object.hasOwn(PLAN_UNITS, outcome.values.unit ?? "") ? outcome.values.unit : PLAN_DEFAULTS.unit) as PlanUnit;
+  const pilotSd: PilotSd = { unitKey, offers: await pilotSdOffersFor(lab.id, PLAN_UNIT_ANALYSIS_UNIT[unitKey]) };
   if (!outcome.ok) return data({ lab, pilotSd, ...outcome, input: null, plan: null }, { status: 400 });
   return { lab, pilotSd, ...outcome, errors: {} as FieldErrors };
 }
@@ -145,22 +148,35 @@ function PlanResult({ plan, input, example }: { plan: SampleSizePlan; input: Sam
   );
 }
 
-/** The SD a finished study of the lab measured, offered with one click. */
+/** The SDs finished studies of the lab measured in this unit, each offered with one click and with what it rests on. */
 function PilotSdOffer({ pilotSd }: { pilotSd: PilotSd }) {
-  if (!pilotSd) {
+  const unit = PLAN_UNITS[pilotSd.unitKey];
+  if (!pilotSd.offers.length) {
     return (
       <p className="text-sm text-graphite-600" data-testid="pilot-sd">
-        No finished study to take an SD from: enter an assumed SD, or one measured in a pilot.
+        No finished study to take an SD from with a primary outcome in {unit.short}: enter an assumed SD, or one measured in a pilot.
       </p>
     );
   }
   return (
-    <p className="text-sm" data-testid="pilot-sd">
-      {pilotSd.studyName} measured an SD of <span className="figures font-bold">{fmt(pilotSd.sd, 3)} {pilotSd.unit}</span> over {pilotSd.blades} blades (pooled over its arms, blade means as the unit).{" "}
-      <Link to={`?design=two-sample&unit=${pilotSd.unit === "cuts" ? "cuts" : pilotSd.unit === "gf per cut" ? "gf-per-cut" : "gf"}&sd=${pilotSd.sd.toFixed(3)}`} className="font-bold">Plan with this SD</Link>
-    </p>
+    <ul className="flex flex-col gap-2 text-sm" data-testid="pilot-sd">
+      {pilotSd.offers.map((o) => (
+        <li key={o.outcome.key} data-testid="pilot-sd-offer">
+          {o.studyName} measured an SD of <span className="figures font-bold">{fmt(o.sd, 3)} {o.outcome.unit}</span> for {o.outcome.label.toLowerCase()} (its primary outcome)
+          {" "}over {o.blades} blades and {o.runs} runs, {o.replicatesPerBlade} replicate{o.replicatesPerBlade === 1 ? "" : "s"} per blade averaged (pooled over its arms, blade means as the unit), under
+          {" "}{o.protocolName}, version {o.protocolVersion}; {fmtShare(o.censoredShare)} of runs censored.{" "}
+          {o.replicatesPerBlade > 1 ? "A study with fewer replicates per blade will see a larger SD. " : null}
+          {o.censoringWarning ? (
+            <strong className="block text-fault" data-testid="pilot-sd-censoring"><span aria-hidden="true">▲ </span>{o.censoringWarning}</strong>
+          ) : null}
+          <Link to={`?design=two-sample&unit=${pilotSd.unitKey}&sd=${o.sd.toFixed(3)}`} className="font-bold">Plan with this SD</Link>
+        </li>
+      ))}
+    </ul>
   );
 }
+
+const fmtShare = (share: number) => `${Math.round(share * 1000) / 10} %`;
 
 function MethodNote() {
   return (

@@ -1,4 +1,5 @@
 import { describe as suite, it, expect } from "vitest";
+import jStat from "jstat";
 import { studentTQuantile, normalQuantile, normalUpperTail, studentTCdf, chiSquareUpperTail } from "~/domain/stats/index.ts";
 import { expectRounded, expectRel } from "./helpers.ts";
 
@@ -27,6 +28,11 @@ suite("Student t and normal quantiles", () => {
   });
   it("chi-square with 2 df has upper tail exp(-x/2) and 1 df is 2Q(sqrt x)", () => {
     expectRel(chiSquareUpperTail(3, 2), Math.exp(-1.5), 1e-12);
+    // Source: chi2_{0.95,1} = 3.841 in the NIST/SEMATECH e-Handbook of Statistical Methods, table of upper critical
+    // values of the chi-square distribution (3 decimals); the full digits are z_0.975² = 1.959963984540054² (from
+    // memory), checked against jStat (independent general-purpose npm library).
+    expect(jStat.chisquare.inv(0.95, 1)).toBeCloseTo(3.841458820694124, 6);
+    expect(1.959963984540054 ** 2).toBeCloseTo(3.841458820694124, 12);
     expectRel(chiSquareUpperTail(3.841458820694124, 1), 0.05, 1e-6);
     expectRel(chiSquareUpperTail(7.814727903251178, 3), 0.05, 1e-6); // chi2_{0.95,3} = 7.815 (NIST table of chi-square critical values)
   });

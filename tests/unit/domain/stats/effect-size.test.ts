@@ -18,6 +18,7 @@ suite("Cohen's d and Hedges' g", () => {
     expectRounded(r.seG, 0.2028, 4);
     expect(r.jMethod).toBe("approximation 1 - 3/(4 df - 1)");
     // Normal-approximation interval g +/- 1.96 SE (Borenstein et al. 2009, eq. 4.25), computed from the published g and SE.
+    // Source: z_0.975 = 1.959964, Abramowitz & Stegun (1964), table 26.5 (from memory).
     expectRounded(r.lower, 0.5924 - 1.959964 * 0.2028, 3);
   });
   it("exact gamma J agrees with the approximation to the published rounding at df = 98 and differs at small df", () => {
@@ -44,7 +45,8 @@ suite("Cohen's d and Hedges' g", () => {
     const d1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0];
     const d2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4];
     const r = dz(d1, d2);
-    // From Student (1908) figures in references.md: t = -4.0621 on n = 10 pairs, so d_z = t / sqrt(10).
+    // Source: Student (1908), Biometrika 6:1-25, on the data of Cushny & Peebles (1905), J. Physiol. 32:501-510
+    // (figures as in ../shared/docs/references.md): paired t = -4.0621 on n = 10 pairs, so d_z = t / sqrt(10).
     expectRel(r.dz, -4.0621 / Math.sqrt(10));
     expect(r.lower).toBeLessThan(r.dz);
     expect(r.upper).toBeGreaterThan(r.dz);

@@ -5,7 +5,7 @@ import { expectRel, normalSample } from "./helpers.ts";
 suite("Holm adjustment", () => {
   it("Holm (1979) example", () => {
     const r = holmAdjust([0.01, 0.04, 0.03, 0.005], 0.05);
-    // Source: Holm (1979), Scand. J. Statist. 6:65-70, as in references.md: reject p = 0.005 and 0.01 only; adjusted 0.03, 0.06, 0.06, 0.02.
+    // Source: Holm (1979), Scand. J. Statist. 6:65-70, as in ../shared/docs/references.md: reject p = 0.005 and 0.01 only; adjusted 0.03, 0.06, 0.06, 0.02.
     expect(r.rejected).toEqual([true, false, false, true]);
     [0.03, 0.06, 0.06, 0.02].forEach((v, i) => expectRel(r.adjusted[i], v));
   });

@@ -44,10 +44,23 @@ suite("power and sample size", () => {
     expect(tTestSampleSize({ design: "two-sample", effect: 1.0 }).n).toBe(17);
   });
   it("exact noncentral-t n before rounding: 63.8, 25.5, 16.7", () => {
-    // Source: references.md, exact noncentral-t calculation, published to 1 decimal.
+    // Source: ../shared/docs/references.md ("Sample size, two-sample t"), to 1 decimal; from memory, these are the
+    // n of R's stats::power.t.test(delta = d, sd = 1, power = 0.8): 63.77, 25.52, 16.71 (not re-run here).
     expect(tTestSampleSize({ design: "two-sample", effect: 0.5 }).nExact.toFixed(1)).toBe("63.8");
     expect(tTestSampleSize({ design: "two-sample", effect: 0.8 }).nExact.toFixed(1)).toBe("25.5");
     expect(tTestSampleSize({ design: "two-sample", difference: 10, sd: 10 }).nExact.toFixed(1)).toBe("16.7");
+  });
+  it("16.11 the power at the exact n is 0.80 by an independent computation", () => {
+    // Source: independent of the module: the critical t from jStat (general-purpose npm library) and the
+    // noncentral t by numerical integration of its definition (nctByIntegration above). Two-sample t,
+    // df = 2n - 2, noncentrality d·sqrt(n/2), power = 1 - F(t_crit) + F(-t_crit).
+    for (const d of [0.5, 0.8, 1.0]) {
+      const n = tTestSampleSize({ design: "two-sample", effect: d }).nExact;
+      const df = 2 * n - 2;
+      const tCrit = jStat.studentt.inv(0.975, df);
+      const ncp = d * Math.sqrt(n / 2);
+      expectRel(1 - nctByIntegration(tCrit, df, ncp) + nctByIntegration(-tCrit, df, ncp), 0.8, 1e-4);
+    }
   });
   it("power at the solved n equals the target, and power is monotone in n", () => {
     const r = tTestSampleSize({ design: "paired", effect: 0.6 }, 0.9);
@@ -59,6 +72,10 @@ suite("power and sample size", () => {
   });
   it("paired power is the one-sample power on the differences: large-n limit matches the normal formula", () => {
     // Large-sample normal formula n = ((z_{1-a/2} + z_{power}) / d_z)^2; the exact t answer is slightly larger.
+    // Source: z_0.975 = 1.959964 and z_0.80 = 0.841621, Abramowitz & Stegun (1964), table 26.5 (from memory),
+    // checked here against jStat's normal quantile (independent general-purpose npm library).
+    expect(jStat.normal.inv(0.975, 0, 1)).toBeCloseTo(1.959964, 6);
+    expect(jStat.normal.inv(0.8, 0, 1)).toBeCloseTo(0.841621, 6);
     const approx = ((1.959964 + 0.841621) / 0.2) ** 2;
     const exact = tTestSampleSize({ design: "paired", effect: 0.2 }).nExact;
     expect(exact).toBeGreaterThan(approx);

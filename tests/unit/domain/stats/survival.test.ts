@@ -11,7 +11,7 @@ suite("Kaplan-Meier", () => {
   const km = kaplanMeier(sixMP);
   const at = (t: number) => km.steps.find((s) => s.time === t)!;
   it("6-MP survival estimates and Greenwood SE", () => {
-    // Source: Gehan (1965) data; KM values as in references.md, published to 4 decimals.
+    // Source: Gehan (1965) data; KM values as in ../shared/docs/references.md, published to 4 decimals.
     expectRounded(at(6).survival, 0.8571, 4);
     expectRounded(at(6).se, 0.0764, 4);
     expectRounded(at(7).survival, 0.8067, 4);
@@ -25,7 +25,7 @@ suite("Kaplan-Meier", () => {
     expect(km.steps.length).toBe(7);
   });
   it("medians: 23 (6-MP) and 8 (placebo)", () => {
-    // Source: references.md (Gehan 1965 data): median 23 for 6-MP, 8 for placebo.
+    // Source: ../shared/docs/references.md (Gehan 1965 data): median 23 for 6-MP, 8 for placebo.
     expect(km.median.estimate).toBe(23);
     expect(kaplanMeier(placebo).median.estimate).toBe(8);
   });
@@ -41,6 +41,8 @@ suite("Kaplan-Meier", () => {
     const seLog = Math.sqrt(3 / (21 * 18)); // Greenwood, hand computation
     const th = Math.log(-Math.log(s));
     const k = seLog / Math.abs(Math.log(s));
+    // Source: Kalbfleisch & Prentice (1980), The Statistical Analysis of Failure Time Data, section 1.3 (log-log band,
+    // from memory); Greenwood SE hand-computed; z_0.975 = 1.959964, Abramowitz & Stegun (1964), table 26.5 (from memory).
     expectRel(at(6).lower!, Math.exp(-Math.exp(th + 1.959964 * k)), 1e-5);
     expectRel(at(6).upper!, Math.exp(-Math.exp(th - 1.959964 * k)), 1e-5);
     const plain = kaplanMeier(sixMP, { transform: "plain" }).steps[0];
@@ -60,7 +62,7 @@ suite("Kaplan-Meier", () => {
 suite("log-rank", () => {
   it("6-MP vs placebo", () => {
     const r = logRank([{ group: "6-MP", observations: sixMP }, { group: "placebo", observations: placebo }]);
-    // Source: references.md, Gehan (1965) data: observed 9 vs expected 19.25 (6-MP), chi-square 16.79 on 1 df (published to 2 decimals).
+    // Source: ../shared/docs/references.md, Gehan (1965) data: observed 9 vs expected 19.25 (6-MP), chi-square 16.79 on 1 df (published to 2 decimals).
     expect(r.groups[0].observed).toBe(9);
     expectRounded(r.groups[0].expected, 19.25, 2);
     expectRounded(r.chiSquare, 16.79, 2);

@@ -10,7 +10,7 @@ const drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4];
 suite("paired t and t-interval (Student 1908 on Cushny & Peebles 1905)", () => {
   it("paired t, drug 1 minus drug 2", () => {
     const r = pairedT(drug1, drug2);
-    // Source: Student (1908), Biometrika 6, data of Cushny & Peebles (1905), J. Physiol. 32:501-510 (R sleep dataset), as in references.md.
+    // Source: Student (1908), Biometrika 6:1-25, data of Cushny & Peebles (1905), J. Physiol. 32:501-510 (R sleep dataset), as in ../shared/docs/references.md.
     expectRel(r.t, -4.0621);
     expect(r.df).toBe(9);
     expectRel(r.p, 0.002833);
@@ -20,7 +20,9 @@ suite("paired t and t-interval (Student 1908 on Cushny & Peebles 1905)", () => {
   });
   it("t-interval of all 20 values", () => {
     const r = tInterval([...drug1, ...drug2]);
-    // Source: references.md, sleep data as one sample: mean 1.54, t = 3.413, df 19, CI (0.5955845, 2.4844155).
+    // Source: the data of Cushny & Peebles (1905), J. Physiol. 32:501-510, as tabled by Student (1908), Biometrika 6:1-25,
+    // all 20 values as one sample: mean 1.54, t = 3.413, df 19, CI (0.5955845, 2.4844155), R's t.test(sleep$extra)
+    // output as given in ../shared/docs/references.md (Student's paper analyses the paired differences, not this sample).
     expectRel(r.mean, 1.54);
     expectRel(r.t, 3.413);
     expect(r.df).toBe(19);
@@ -42,7 +44,7 @@ suite("Welch's t", () => {
     const x = Array.from({ length: 10 }, (_, i) => i + 1);
     const y = Array.from({ length: 14 }, (_, i) => i + 7);
     const r = welchT(x, y);
-    // Source: R documentation example of t.test (references.md): t = -5.4349, df = 21.982, p = 1.855e-05, CI (-11.052802, -4.947198).
+    // Source: R documentation example of t.test (../shared/docs/references.md): t = -5.4349, df = 21.982, p = 1.855e-05, CI (-11.052802, -4.947198).
     expectRel(r.t, -5.4349);
     expectRel(r.df, 21.982);
     expectRel(r.p, 1.855e-5, 5e-4); // printed to 4 significant figures
