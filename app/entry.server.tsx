@@ -1,12 +1,26 @@
 import { PassThrough } from "node:stream";
-import type { AppLoadContext, EntryContext } from "react-router";
+import type { AppLoadContext, EntryContext, ServerInstrumentation } from "react-router";
 import { createReadableStreamFromReadable } from "@react-router/node";
 import { ServerRouter } from "react-router";
 import { isbot } from "isbot";
 import { renderToPipeableStream, type RenderToPipeableStreamOptions } from "react-dom/server";
 import { NonceContext } from "./nonce.tsx";
+import { runInRequestScope } from "./server/request-scope.server.ts";
 
 export const streamTimeout = 5_000;
+
+// Every loader of one request runs inside one request scope, so the session is read once per page.
+export const instrumentations: ServerInstrumentation[] = [
+  {
+    handler(handler) {
+      handler.instrument({
+        async request(handle, { request }) {
+          await runInRequestScope(request.method, handle);
+        },
+      });
+    },
+  },
+];
 
 export default function handleRequest(
   request: Request,

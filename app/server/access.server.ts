@@ -1,21 +1,23 @@
 import { data, redirect } from "react-router";
-import { and, eq } from "drizzle-orm";
-import { db } from "./db.server.ts";
-import { labs, memberships, type LabRole } from "./db/schema/index.ts";
-import { getSessionUser, type SessionUser } from "./session.server.ts";
+import type { LabRole } from "./db/schema/index.ts";
+import { getSignedIn, type SessionUser, type SignedIn } from "./session.server.ts";
 
 export const ALL_ROLES: LabRole[] = ["owner", "lead", "tester", "analyst"];
 export const MANAGERS: LabRole[] = ["owner", "lead"];
 
 /** The signed-in user, or a redirect to sign-in that comes back here afterwards. */
 export async function requireUser(request: Request): Promise<SessionUser> {
-  const user = await getSessionUser(request);
-  if (!user) {
+  return (await requireSignedIn(request)).user;
+}
+
+async function requireSignedIn(request: Request): Promise<SignedIn> {
+  const signedIn = await getSignedIn(request);
+  if (!signedIn) {
     const url = new URL(request.url);
     const back = `${url.pathname}${url.search}`;
     throw redirect(`/sign-in?redirectTo=${encodeURIComponent(back)}`);
   }
-  return user;
+  return signedIn;
 }
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -30,14 +32,10 @@ export function notFound(): never {
  * 403 when the member's role is not among `roles`.
  */
 export async function requireLabRole(request: Request, labId: string | undefined, roles: readonly LabRole[]) {
-  const user = await requireUser(request);
+  // The memberships come with the session in one statement, read on every request.
+  const { user, memberships } = await requireSignedIn(request);
   if (!labId || !UUID.test(labId)) notFound();
-  const [row] = await db()
-    .select({ role: memberships.role, labId: labs.id, labName: labs.name })
-    .from(memberships)
-    .innerJoin(labs, eq(labs.id, memberships.labId))
-    .where(and(eq(memberships.labId, labId), eq(memberships.userId, user.id)))
-    .limit(1);
+  const row = memberships.find((m) => m.labId === labId);
   if (!row) notFound();
   if (!roles.includes(row.role)) {
     throw data("Your role in this lab does not include this page.", { status: 403 });

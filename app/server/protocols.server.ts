@@ -263,6 +263,14 @@ export function publishVersion(actor: Actor, labId: string, protocolId: string, 
   return db().transaction((tx) => publishVersionTx(tx, actor, labId, protocolId, version));
 }
 
+/** Saves the draft and, when asked, publishes it: both land or neither. */
+export function saveDraftAndMaybePublish(actor: Actor, labId: string, protocolId: string, version: number, input: unknown, publish: boolean) {
+  return db().transaction(async (tx) => {
+    await saveDraftTx(tx, labId, protocolId, version, input);
+    if (publish) await publishVersionTx(tx, actor, labId, protocolId, version);
+  });
+}
+
 export async function newDraftFromTx(tx: Transaction, actor: Actor, labId: string, protocolId: string, fromVersion: number) {
   // One writer per protocol: two leads pressing at once get one draft, not two.
   const [protocol] = await tx.select().from(protocols).where(and(eq(protocols.id, protocolId), eq(protocols.labId, labId))).for("update").limit(1);

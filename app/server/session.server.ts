@@ -1,7 +1,8 @@
 import { createCookie, redirect } from "react-router";
-import { and, eq, gt, ne } from "drizzle-orm";
+import { and, asc, eq, gt, ne } from "drizzle-orm";
 import { db, type DbOrTx } from "./db.server.ts";
-import { sessions, users, type User } from "./db/schema/index.ts";
+import { labs, memberships, sessions, users, type Lab, type Membership, type User } from "./db/schema/index.ts";
+import { oncePerRequest } from "./request-scope.server.ts";
 import { env, sessionSecret } from "./env.server.ts";
 import { randomToken, tokenHash } from "./tokens.server.ts";
 
@@ -37,30 +38,55 @@ async function readSessionId(request: Request): Promise<string | null> {
 
 export type SessionUser = Pick<User, "id" | "email" | "name"> & { sessionId: string };
 
-// The root loader and the route's own loader both ask for the user of one request:
-// look it up once per request object (never across requests, so a sign-out still takes effect at once).
-const perRequest = new WeakMap<Request, Promise<SessionUser | null>>();
+/** One lab the signed-in user belongs to, with the role as the database holds it now. */
+export type SessionMembership = { labId: Lab["id"]; labName: Lab["name"]; isDemo: Lab["isDemo"]; role: Membership["role"] };
+
+export type SignedIn = { user: SessionUser; memberships: SessionMembership[] };
 
 /** The signed-in user, checked against the sessions table on every request. */
-export function getSessionUser(request: Request): Promise<SessionUser | null> {
-  let found = perRequest.get(request);
-  if (!found) {
-    found = lookUpSessionUser(request);
-    perRequest.set(request, found);
-  }
-  return found;
+export async function getSessionUser(request: Request): Promise<SessionUser | null> {
+  return (await getSignedIn(request))?.user ?? null;
 }
 
-async function lookUpSessionUser(request: Request): Promise<SessionUser | null> {
+/**
+ * The session, its user and every membership of that user (with the lab), in one statement.
+ * A read request (every loader of one page) asks the database once; the next request asks
+ * again, so a sign-out or a changed role takes effect at once.
+ */
+export async function getSignedIn(request: Request): Promise<SignedIn | null> {
   const id = await readSessionId(request);
   if (!id) return null;
-  const [row] = await db()
-    .select({ id: users.id, email: users.email, name: users.name, sessionId: sessions.id })
+  const hash = tokenHash(id);
+  return oncePerRequest(`signed-in:${hash}`, () => lookUpSignedIn(hash));
+}
+
+async function lookUpSignedIn(sessionHash: string): Promise<SignedIn | null> {
+  const rows = await db()
+    .select({
+      id: users.id,
+      email: users.email,
+      name: users.name,
+      sessionId: sessions.id,
+      labId: labs.id,
+      labName: labs.name,
+      isDemo: labs.isDemo,
+      role: memberships.role,
+    })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
-    .where(and(eq(sessions.id, tokenHash(id)), gt(sessions.expiresAt, new Date())))
-    .limit(1);
-  return row ?? null;
+    .leftJoin(memberships, eq(memberships.userId, users.id))
+    .leftJoin(labs, eq(labs.id, memberships.labId))
+    .where(and(eq(sessions.id, sessionHash), gt(sessions.expiresAt, new Date())))
+    .orderBy(asc(labs.name));
+  const [first] = rows;
+  if (!first) return null;
+  const memberships_: SessionMembership[] = [];
+  for (const r of rows) {
+    if (r.labId !== null && r.labName !== null && r.isDemo !== null && r.role !== null) {
+      memberships_.push({ labId: r.labId, labName: r.labName, isDemo: r.isDemo, role: r.role });
+    }
+  }
+  return { user: { id: first.id, email: first.email, name: first.name, sessionId: first.sessionId }, memberships: memberships_ };
 }
 
 /** Ends the session server-side, so the old cookie stops working everywhere. */

@@ -1,5 +1,4 @@
-import { labsOfUser } from "./accounts.server.ts";
-import { getSessionUser } from "./session.server.ts";
+import { getSignedIn } from "./session.server.ts";
 
 // What the app shell needs to know about the signed-in person: nothing more.
 export type ShellUser = {
@@ -10,9 +9,9 @@ export type ShellUser = {
 };
 
 export async function getOptionalShellUser(request: Request, labId?: string): Promise<ShellUser | null> {
-  const user = await getSessionUser(request);
-  if (!user) return null;
-  const labs = await labsOfUser(user.id);
-  const current = labs.find((l) => l.id === labId) ?? (labs.length === 1 ? labs[0] : null);
-  return { name: user.name, currentLab: current ? { id: current.id, name: current.name } : null, labCount: labs.length, isTester: labs.some((l) => l.role === "tester") };
+  const signedIn = await getSignedIn(request);
+  if (!signedIn) return null;
+  const labs = signedIn.memberships;
+  const current = labs.find((l) => l.labId === labId) ?? (labs.length === 1 ? labs[0] : null);
+  return { name: signedIn.user.name, currentLab: current ? { id: current.labId, name: current.labName } : null, labCount: labs.length, isTester: labs.some((l) => l.role === "tester") };
 }

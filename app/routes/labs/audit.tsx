@@ -1,12 +1,10 @@
 import { Form, Link } from "react-router";
-import { and, desc, eq, sql, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import type { Route } from "./+types/audit";
 import { PageTitle } from "~/components/form.tsx";
 import { EmptyState, Pagination } from "~/components/table.tsx";
 import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
-import { db } from "~/server/db.server.ts";
-import { auditEvents, memberships, studies, users } from "~/server/db/schema/index.ts";
+import { auditLogPage } from "~/server/audit-log.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Audit log · Blindcut" }];
 
@@ -22,33 +20,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, MANAGERS);
   const url = new URL(request.url);
   const f = Filters.parse(Object.fromEntries(url.searchParams));
-  const parts: SQL[] = [eq(auditEvents.labId, lab.id)];
-  if (f.person) parts.push(eq(auditEvents.actorId, f.person));
-  if (f.kind) parts.push(eq(auditEvents.action, f.kind));
-  // Events of a study: the study's own, and those of its runs and readings (they name the study in their details).
-  if (f.study) parts.push(sql`(${auditEvents.objectId} = ${f.study} OR ${auditEvents.details}->>'studyId' = ${f.study})`);
-  const where = and(...parts);
-  const [rows, [{ total }], studyOptions, people, kinds] = await Promise.all([
-    db()
-      .select({ seq: auditEvents.seq, action: auditEvents.action, at: auditEvents.at, actor: users.name, objectType: auditEvents.objectType, details: auditEvents.details, hash: auditEvents.hash })
-      .from(auditEvents)
-      .leftJoin(users, eq(users.id, auditEvents.actorId))
-      .where(where)
-      .orderBy(desc(auditEvents.seq))
-      .limit(PAGE)
-      .offset((f.page - 1) * PAGE),
-    db().select({ total: sql<number>`count(*)::int` }).from(auditEvents).where(where),
-    db().select({ id: studies.id, name: studies.shortName }).from(studies).where(eq(studies.labId, lab.id)).orderBy(studies.shortName),
-    db().select({ id: users.id, name: users.name }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.labId, lab.id)).orderBy(users.name),
-    db().selectDistinct({ action: auditEvents.action }).from(auditEvents).where(eq(auditEvents.labId, lab.id)).orderBy(auditEvents.action),
-  ]);
+  const { rows, total, studies, people, kinds } = await auditLogPage(lab.id, f, PAGE);
   return {
     lab,
     filters: f,
     total,
-    studies: studyOptions,
+    studies,
     people,
-    kinds: kinds.map((k) => k.action),
+    kinds,
     rows: rows.map((r) => ({ ...r, at: r.at.toISOString(), details: JSON.stringify(r.details) })),
   };
 }

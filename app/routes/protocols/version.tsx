@@ -5,7 +5,6 @@ import { ProtocolEditor } from "~/components/protocol-editor.tsx";
 import { ProtocolRecord, StateBadge } from "~/components/protocol-view.tsx";
 import { ALL_ROLES, MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { UserFacingError } from "~/server/accounts.server.ts";
-import { db } from "~/server/db.server.ts";
 import {
   canWriteProtocols,
   forbidDrafts,
@@ -15,8 +14,7 @@ import {
   ProtocolContentError,
   protocolIdParam,
   requireProtocolOfLab,
-  publishVersionTx,
-  saveDraftTx,
+  saveDraftAndMaybePublish,
   sharpnessTesterHints,
   versionParam,
 } from "~/server/protocols.server.ts";
@@ -74,11 +72,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     return data<ActionResult>({ errors: {}, formError: "The form could not be read: reload the page and try again." }, { status: 400 });
   }
   try {
-    // Saving and publishing together: both land or neither.
-    await db().transaction(async (tx) => {
-      await saveDraftTx(tx, lab.id, protocolId, version, input);
-      if (intent === "publish") await publishVersionTx(tx, user, lab.id, protocolId, version);
-    });
+    await saveDraftAndMaybePublish(user, lab.id, protocolId, version, input, intent === "publish");
   } catch (error) {
     if (error instanceof ProtocolContentError) return data<ActionResult>({ errors: error.errors }, { status: 400 });
     if (error instanceof UserFacingError) {

@@ -1,22 +1,16 @@
 import { Link } from "react-router";
-import { and, desc, eq, inArray } from "drizzle-orm";
 import type { Route } from "./+types/list";
 import { PageTitle } from "~/components/form.tsx";
 import { EmptyState } from "~/components/table.tsx";
 import { requireLabRole } from "~/server/access.server.ts";
 import { RESULT_READERS } from "~/server/analysis/access.server.ts";
-import { db } from "~/server/db.server.ts";
-import { studies } from "~/server/db/schema/index.ts";
+import { closedStudiesOfLab } from "~/server/analysis/lifecycle.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Results · Blindcut" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, RESULT_READERS);
-  const rows = await db()
-    .select({ id: studies.id, shortName: studies.shortName, state: studies.state, closedAt: studies.closedAt, unblindedAt: studies.unblindedAt })
-    .from(studies)
-    .where(and(eq(studies.labId, lab.id), inArray(studies.state, ["closed", "unblinded"])))
-    .orderBy(desc(studies.closedAt));
+  const rows = await closedStudiesOfLab(lab.id);
   return { lab, studies: rows.map((s) => ({ ...s, closedAt: s.closedAt?.toISOString().slice(0, 10) ?? null })) };
 }
 

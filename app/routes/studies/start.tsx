@@ -1,27 +1,19 @@
 import { Form, Link, data, redirect } from "react-router";
-import { and, count, eq } from "drizzle-orm";
 import type { Route } from "./+types/start";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { StudyStateBadge } from "~/components/study-state.tsx";
 import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
-import { db } from "~/server/db.server.ts";
-import { runs, studies, users } from "~/server/db/schema/index.ts";
 import { refusalResponse, studyIdParam } from "~/server/studies/designer.server.ts";
-import { startStudy } from "~/server/studies/schedule.server.ts";
+import { startPagePreview, startStudy } from "~/server/studies/schedule.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Start the study · Blindcut" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, MANAGERS);
   const studyId = studyIdParam(params.studyId);
-  const [study] = await db().select({ id: studies.id, shortName: studies.shortName, state: studies.state }).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, lab.id)));
-  if (!study) throw data("This study does not exist, or it belongs to another lab.", { status: 404 });
-  const perTester = await db()
-    .select({ name: users.name, runs: count() })
-    .from(runs)
-    .innerJoin(users, eq(users.id, runs.testerId))
-    .where(eq(runs.studyId, studyId))
-    .groupBy(users.id, users.name);
+  const preview = await startPagePreview(lab.id, studyId);
+  if (!preview) throw data("This study does not exist, or it belongs to another lab.", { status: 404 });
+  const { study, perTester } = preview;
   return { lab, study, perTester };
 }
 

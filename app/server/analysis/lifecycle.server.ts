@@ -1,6 +1,6 @@
-import { and, eq, inArray } from "drizzle-orm";
+import { and, desc, eq, inArray } from "drizzle-orm";
 import { db, type Transaction } from "../db.server.ts";
-import { memberships, runs, studies, users } from "../db/schema/index.ts";
+import { memberships, runs, studies, users, type Study } from "../db/schema/index.ts";
 import { recordAudit } from "../audit.server.ts";
 import { appUrl, composeMail, sendMail } from "../mail.server.ts";
 import { analyzeStudy } from "~/domain/study-analysis.ts";
@@ -76,4 +76,15 @@ export async function mailAnalysts(request: Request, labId: string, studyId: str
     await sendMail(mail);
   }
   return analysts.length;
+}
+
+export type ClosedStudy = Pick<Study, "id" | "shortName" | "state" | "closedAt" | "unblindedAt">;
+
+/** The lab's closed and unblinded studies, most recently closed first. */
+export function closedStudiesOfLab(labId: string): Promise<ClosedStudy[]> {
+  return db()
+    .select({ id: studies.id, shortName: studies.shortName, state: studies.state, closedAt: studies.closedAt, unblindedAt: studies.unblindedAt })
+    .from(studies)
+    .where(and(eq(studies.labId, labId), inArray(studies.state, ["closed", "unblinded"])))
+    .orderBy(desc(studies.closedAt));
 }

@@ -5,7 +5,7 @@
 import { and, asc, count, eq } from "drizzle-orm";
 import QRCode from "qrcode";
 import { db } from "../db.server.ts";
-import { blades, randomizationRolls, readings, runs, studies, studyArms, studyBlades, users } from "../db/schema/index.ts";
+import { blades, randomizationRolls, readings, runs, studies, studyArms, studyBlades, users, type Study, type User } from "../db/schema/index.ts";
 import { appUrl, composeMail, sendMail } from "../mail.server.ts";
 import { regenerateSchedule, startStudyTx } from "./randomize.server.ts";
 import { DesignerError } from "./designer.server.ts";
@@ -146,4 +146,22 @@ export async function startStudy(actorId: string, labId: string, studyId: string
     }
   }
   return { testers: testers.length, failed };
+}
+
+export type StartPageStudy = Pick<Study, "id" | "shortName" | "state">;
+
+/** The start page: the study of the lab (null when it is another lab's) and how many runs each tester gets. */
+export async function startPagePreview(labId: string, studyId: string): Promise<{ study: StartPageStudy; perTester: { name: User["name"]; runs: number }[] } | null> {
+  const [study] = await db()
+    .select({ id: studies.id, shortName: studies.shortName, state: studies.state })
+    .from(studies)
+    .where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
+  if (!study) return null;
+  const perTester = await db()
+    .select({ name: users.name, runs: count() })
+    .from(runs)
+    .innerJoin(users, eq(users.id, runs.testerId))
+    .where(eq(runs.studyId, studyId))
+    .groupBy(users.id, users.name);
+  return { study, perTester };
 }
