@@ -22,7 +22,9 @@ export async function action({ request }: Route.ActionArgs) {
     return redirect(`/labs/${lab.id}`, { headers: { "Set-Cookie": cookie } });
   } catch (error) {
     if (error instanceof UserFacingError) {
-      return data(formFailure(parsed.data as unknown as Record<string, string>, error.field ? { [error.field]: error.message } : {}, error.field ? undefined : error.message), { status: 400 });
+      // The password is never sent back in page data.
+      const { password: _password, ...kept } = parsed.data;
+      return data(formFailure(kept as unknown as Record<string, string>, error.field ? { [error.field]: error.message } : {}, error.field ? undefined : error.message), { status: 400 });
     }
     throw error;
   }
