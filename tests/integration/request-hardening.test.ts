@@ -137,6 +137,9 @@ describe("15.7 enumeration and echoed passwords", () => {
     const response = await new AppClient().post("/sign-up", { name: "Someone", email, password: secret, labName: "Another lab" });
     expect(response.status).toBeLessThan(500);
     expect(await response.text()).not.toContain(secret);
+    // The owner of the address is told instead.
+    const notice = await waitForMail(mailDir(), email, /tried to create a Blindcut account/);
+    expect(notice.text).not.toContain(secret);
   });
 
   it("15.7 a reset request answers the same way and in about the same time for known and unknown addresses", async () => {
