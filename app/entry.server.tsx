@@ -63,3 +63,6 @@ export default function handleRequest(
     setTimeout(abort, streamTimeout + 1000);
   });
 }
+
+// The pre-routing checks, reached by the server (scripts/server.mjs) and the test client through build.entry.module.
+export { refuseRequest } from "./server/request-guard.server.ts";

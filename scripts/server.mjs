@@ -11,6 +11,12 @@ const ROOT = path.resolve(path.dirname(new URL(import.meta.url).pathname), "..")
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? "0.0.0.0";
 
+// Mailed links are built from APP_URL in production (a local plain-http run uses its own origin).
+if (process.env.NODE_ENV === "production" && !process.env.APP_URL && process.env.BLINDCUT_INSECURE_COOKIES !== "1") {
+  console.error("[blindcut] APP_URL is required in production (the origin of links in mail)");
+  process.exit(1);
+}
+
 const app = express();
 app.disable("x-powered-by");
 app.set("trust proxy", process.env.TRUST_PROXY === "1" ? 1 : false);
@@ -64,16 +70,27 @@ app.use("/assets", express.static(path.join(ROOT, "build/client/assets"), { immu
 app.use(express.static(path.join(ROOT, "build/client"), { maxAge: "1h" }));
 
 const build = await import(path.join(ROOT, "build/server/index.js"));
+// Methods no route handles are refused before routing (the same check the test client runs).
+app.use((req, res, next) => {
+  const refusal = build.entry.module.refuseRequest(req.method);
+  if (!refusal) return next();
+  res.status(refusal.status);
+  refusal.headers.forEach((value, name) => res.setHeader(name, value));
+  refusal.text().then((body) => res.send(body), next);
+});
 app.all(
   "*splat",
   createRequestHandler({
     build,
     mode: process.env.NODE_ENV,
-    getLoadContext: (_req, res) => ({ cspNonce: res.locals.cspNonce }),
+    // req.ip is the socket address unless TRUST_PROXY=1 (then the nearest proxy's X-Forwarded-For entry).
+    getLoadContext: (req, res) => ({ cspNonce: res.locals.cspNonce, clientAddress: req.ip ?? req.socket.remoteAddress ?? "unknown" }),
   }),
 );
 
 const server = app.listen(port, host, () => {
+  // Mailed links use APP_URL, else (outside production) this listening origin, never a request's Host.
+  process.env.BLINDCUT_LISTEN_ORIGIN = `http://localhost:${server.address().port}`;
   console.log(`[blindcut] app listening on http://localhost:${port}`);
 });
 const shutdown = () => server.close(() => process.exit(0));

@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, gt, isNull, sql } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "./db.server.ts";
-import { invitations, labs, memberships, passwordResets, sessions, users, type LabRole } from "./db/schema/index.ts";
+import { invitations, labs, memberships, passwordResets, sessions, signInFailures, users, type LabRole } from "./db/schema/index.ts";
 import { recordAudit } from "./audit.server.ts";
 import { hashPassword, verifyPassword } from "./password.server.ts";
 import { randomToken, tokenHash } from "./tokens.server.ts";
@@ -156,10 +156,13 @@ export async function invitationsOfLab(labId: string) {
   return rows.map((r) => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt, expiresAt: r.expiresAt, state: invitationState(r) }));
 }
 
-export async function revokeInvitation(actorId: string, labId: string, invitationId: string) {
+export async function revokeInvitation(actor: { id: string; role: LabRole }, labId: string, invitationId: string) {
+  const actorId = actor.id;
   await db().transaction(async (tx) => {
     const [row] = await tx.select().from(invitations).where(and(eq(invitations.id, invitationId), eq(invitations.labId, labId))).for("update");
     if (!row) throw new UserFacingError("No such invitation in this lab", undefined, 404);
+    // Revoking is granting in reverse: only a role that may hand out this role may take it back.
+    if (!invitableRoles(actor.role).includes(row.role)) throw new UserFacingError(`As a ${actor.role} you cannot revoke an invitation of ${row.role === "owner" ? "an" : "a"} ${row.role}`, undefined, 403);
     if (invitationState(row) !== "pending") throw new UserFacingError("Only a pending invitation can be revoked", undefined, 409);
     await tx.update(invitations).set({ revokedAt: new Date() }).where(eq(invitations.id, invitationId));
     await recordAudit(tx, { labId, actorId, action: "member.invitation_revoked", objectType: "invitation", objectId: invitationId, details: { email: row.email } });
@@ -250,9 +253,13 @@ export async function completePasswordReset(token: string, password: string) {
       .where(and(eq(passwordResets.tokenHash, tokenHash(token)), isNull(passwordResets.usedAt), gt(passwordResets.expiresAt, new Date())))
       .for("update");
     if (!row) throw new UserFacingError("This reset link has expired or was already used. Ask for a new one.", undefined, 410);
-    await tx.update(passwordResets).set({ usedAt: new Date() }).where(eq(passwordResets.tokenHash, row.tokenHash));
+    // This link is spent, and so is every other unused link of the user.
+    await tx.update(passwordResets).set({ usedAt: new Date() }).where(and(eq(passwordResets.userId, row.userId), isNull(passwordResets.usedAt)));
     await tx.update(users).set({ passwordHash }).where(eq(users.id, row.userId));
     await endOtherSessions(tx, row.userId, null);
+    // The reset path lifts a sign-in pause of the account: the owner is never locked out for long.
+    const [owner] = await tx.select({ email: users.email }).from(users).where(eq(users.id, row.userId));
+    await tx.delete(signInFailures).where(eq(signInFailures.email, owner.email.toLowerCase()));
     await recordAudit(tx, { labId: null, actorId: row.userId, action: "user.password_reset", objectType: "user", objectId: row.userId });
     return { cookie: await createUserSession(row.userId, tx) };
   });

@@ -2,6 +2,7 @@ import { and, eq } from "drizzle-orm";
 import { parseFormData, MaxFilesExceededError, type FileUpload } from "@remix-run/form-data-parser";
 import { MaxFileSizeExceededError } from "@remix-run/multipart-parser";
 import { db } from "./db.server.ts";
+import { mediaType } from "./body-limit.server.ts";
 import { storedFiles } from "./db/schema/index.ts";
 import { MAX_IMAGE_BYTES, putObject, sniffImageType, getObject } from "./storage.server.ts";
 
@@ -20,8 +21,10 @@ export class UploadError extends Error {
  * checked by its first bytes; the object key is random.
  */
 export async function receiveImage(request: Request, labId: string, userId: string) {
-  const contentType = request.headers.get("content-type") ?? "";
-  if (!contentType.startsWith("multipart/form-data")) throw new UploadError("Send the photo as a multipart form upload", 415);
+  if (mediaType(request.headers.get("content-type")) !== "multipart/form-data") throw new UploadError("Send the photo as a multipart form upload", 415);
+  // A declared length beyond the photo limit (plus room for the form's boundaries) is refused unread.
+  const declared = Number(request.headers.get("content-length") ?? "0");
+  if (declared > MAX_IMAGE_BYTES + 64 * 1024) throw new UploadError(`The photo is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB. Choose a smaller image.`, 413);
   let file: FileUpload | undefined;
   try {
     await parseFormData(request, { maxFiles: 1, maxFileSize: MAX_IMAGE_BYTES }, async (upload) => {

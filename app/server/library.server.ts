@@ -8,6 +8,7 @@ import type { TableQuery } from "~/lib/table-query.ts";
 import { likePattern } from "~/lib/table-query.ts";
 import { calibrationPassed, calibrationStatus, type CalibrationStatus } from "~/domain/calibration.ts";
 import type { z } from "zod";
+import { toCsv } from "~/lib/csv.ts";
 
 export class LibraryError extends Error {
   constructor(
@@ -245,13 +246,9 @@ export async function commitBladeImport(labId: string, actorId: string, csvText:
 const csvCell = (v: unknown) => (v === null || v === undefined ? "" : Array.isArray(v) ? v.join(" ") : String(v));
 
 export function bladesToCsv(rows: Blade[]): string {
-  return Papa.unparse(
-    {
-      fields: BLADE_CSV_COLUMNS.map(([csv]) => csv),
-      data: rows.map((b) => BLADE_CSV_COLUMNS.map(([, field]) => csvCell(b[field as keyof Blade]))),
-    },
-    // Cells that a spreadsheet would run as a formula are quoted with a leading apostrophe.
-    { escapeFormulae: true },
+  return toCsv(
+    BLADE_CSV_COLUMNS.map(([csv]) => csv),
+    rows.map((b) => BLADE_CSV_COLUMNS.map(([, field]) => csvCell(b[field as keyof Blade]))),
   );
 }
 

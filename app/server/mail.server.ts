@@ -21,9 +21,20 @@ export async function sendMail(mail: Mail) {
   await transport().sendMail({ from: env().MAIL_FROM, ...mail });
 }
 
-export function appUrl(request: Request, pathname: string) {
-  const base = env().APP_URL ?? new URL(request.url).origin;
-  return new URL(pathname, base).toString();
+/**
+ * The origin of links in mail, from configuration only, never from a request's Host or
+ * Origin header: APP_URL; outside production (or a local plain-http run) the server's own
+ * listening origin. Production without APP_URL refuses to build a link.
+ */
+export function mailOrigin(): string {
+  const e = env();
+  if (e.APP_URL) return new URL(e.APP_URL).origin;
+  if (e.NODE_ENV === "production" && !e.BLINDCUT_INSECURE_COOKIES) throw new Error("APP_URL is required in production: mailed links are built from it");
+  return process.env.BLINDCUT_LISTEN_ORIGIN ?? `http://localhost:${process.env.PORT ?? 3000}`;
+}
+
+export function appUrl(pathname: string) {
+  return new URL(pathname, mailOrigin()).toString();
 }
 
 const escapeHtml = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);

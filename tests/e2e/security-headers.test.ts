@@ -31,4 +31,16 @@ describe("cross-site requests and security headers (the production server)", () 
       expect(r.headers.get("content-security-policy"), path).not.toContain("unsafe-eval");
     }
   });
+
+  it("15.10 and 15.13 the production server answers 413 to an oversized form and 405 to PUT, PATCH and DELETE", async () => {
+    const base = inject("baseUrl");
+    const big = await fetch(`${base}/sign-in`, { method: "POST", body: `email=a%40b.test&password=${"x".repeat(200_000)}`, headers: { Origin: base, "Content-Type": "application/x-www-form-urlencoded" }, redirect: "manual" });
+    expect(big.status).toBe(413);
+    for (const method of ["PUT", "PATCH", "DELETE"]) {
+      const r = await fetch(`${base}/sign-in`, { method, body: new URLSearchParams({ email: "owner@demo.test", password: "blindcut-demo" }), headers: { Origin: base }, redirect: "manual" });
+      expect(r.status, method).toBe(405);
+      expect(r.headers.get("allow"), method).toContain("POST");
+      expect(r.headers.get("set-cookie"), method).toBeNull();
+    }
+  });
 });

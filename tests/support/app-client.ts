@@ -4,14 +4,17 @@ import { createRequestHandler, type ServerBuild } from "react-router";
 import path from "node:path";
 import { pathToFileURL } from "node:url";
 
-let handler: ((request: Request) => Promise<Response>) | undefined;
+let handler: ((request: Request, clientAddress: string) => Promise<Response>) | undefined;
+let clients = 0;
 
 async function appHandler() {
   if (!handler) {
     const buildPath = path.resolve(import.meta.dirname, "../../build/server/index.js");
     const build = (await import(/* @vite-ignore */ pathToFileURL(buildPath).href)) as ServerBuild;
     const handle = createRequestHandler(build, "production");
-    handler = (request) => handle(request, { cspNonce: "test-nonce" });
+    // The same pre-routing refusal as scripts/server.mjs.
+    const refuseRequest = (build.entry.module as unknown as { refuseRequest?: (method: string) => Response | null }).refuseRequest ?? (() => null);
+    handler = (request, clientAddress) => Promise.resolve(refuseRequest(request.method) ?? handle(request, { cspNonce: "test-nonce", clientAddress }));
   }
   return handler;
 }
@@ -20,12 +23,18 @@ export const ORIGIN = "http://localhost";
 
 export class AppClient {
   cookies = new Map<string, string>();
+  /** The address the server sees for this client (each client its own unless a test shares one). */
+  clientAddress = `192.0.2.${(clients++ % 250) + 1}:${process.env.VITEST_POOL_ID ?? 0}:${clients}`;
+
+  constructor(options: { clientAddress?: string } = {}) {
+    if (options.clientAddress) this.clientAddress = options.clientAddress;
+  }
 
   async request(pathname: string, init: RequestInit = {}): Promise<Response> {
     const headers = new Headers(init.headers);
     if (this.cookies.size) headers.set("Cookie", [...this.cookies].map(([k, v]) => `${k}=${v}`).join("; "));
     if (init.method && init.method !== "GET" && !headers.has("Origin")) headers.set("Origin", ORIGIN);
-    const response = await (await appHandler())(new Request(new URL(pathname, ORIGIN), { ...init, headers, redirect: "manual" }));
+    const response = await (await appHandler())(new Request(new URL(pathname, ORIGIN), { ...init, headers, redirect: "manual" }), this.clientAddress);
     for (const cookie of response.headers.getSetCookie()) {
       const [pair] = cookie.split(";");
       const [name, ...value] = pair.split("=");

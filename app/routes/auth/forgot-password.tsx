@@ -6,25 +6,33 @@ import { parseForm } from "~/lib/forms.ts";
 import { startPasswordReset, RESET_MINUTES } from "~/server/accounts.server.ts";
 import { appUrl, composeMail, sendMail } from "~/server/mail.server.ts";
 import { readFormData } from "~/server/form-data.server.ts";
+import { allowResetRequest } from "~/server/throttle.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reset your password · Blindcut" }];
 
 const Schema = z.object({ email: z.string().trim().toLowerCase().email("Enter the e-mail address of your account") });
 
-export async function action({ request }: Route.ActionArgs) {
+/** Looks the address up and mails the link; runs after the answer, so its time tells nothing. */
+async function deliverReset(email: string) {
+  const reset = await startPasswordReset(email);
+  if (!reset) return;
+  const url = appUrl(`/reset-password/${reset.token}`);
+  await sendMail(
+    composeMail(reset.user.email, "Reset your Blindcut password", [
+      `Someone asked to reset the password of the Blindcut account for ${reset.user.email}.`,
+      `The link works once, for ${RESET_MINUTES} minutes. If you did not ask for it, ignore this mail: your password stays as it is.`,
+    ], { label: "Choose a new password", url }),
+  );
+}
+
+export async function action({ request, context }: Route.ActionArgs) {
   const parsed = parseForm(Schema, await readFormData(request));
   if (!parsed.ok) return data({ ...parsed, sent: false }, { status: 400 });
-  const reset = await startPasswordReset(parsed.data.email);
-  if (reset) {
-    const url = appUrl(request, `/reset-password/${reset.token}`);
-    await sendMail(
-      composeMail(reset.user.email, "Reset your Blindcut password", [
-        `Someone asked to reset the password of the Blindcut account for ${reset.user.email}.`,
-        `The link works once, for ${RESET_MINUTES} minutes. If you did not ask for it, ignore this mail: your password stays as it is.`,
-      ], { label: "Choose a new password", url }),
-    );
+  // Counted per address and per client before anything else; over the limit nothing is mailed.
+  if (await allowResetRequest(parsed.data.email, context?.clientAddress ?? "unknown")) {
+    void deliverReset(parsed.data.email).catch((error) => console.error("[blindcut] reset mail failed", error));
   }
-  // The same answer whether or not the address has an account.
+  // The same answer, after the same work, whether or not the address has an account.
   return { sent: true, errors: {} as Record<string, string>, values: {} as Record<string, string> };
 }
 

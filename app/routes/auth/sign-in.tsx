@@ -1,7 +1,7 @@
 import { Form, Link, redirect, data, useSearchParams } from "react-router";
 import type { Route } from "./+types/sign-in";
 import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
-import { authenticator, safeRedirect, SignInError } from "~/server/auth.server.ts";
+import { authenticator, CLIENT_ADDRESS_HEADER, safeRedirect, SignInError } from "~/server/auth.server.ts";
 import { createUserSession, getSessionUser } from "~/server/session.server.ts";
 import { env } from "~/server/env.server.ts";
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "~/server/demo/accounts.ts";
@@ -17,11 +17,16 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { demo };
 }
 
-export async function action({ request }: Route.ActionArgs) {
-  const form = await readFormData(request.clone());
+export async function action({ request, context }: Route.ActionArgs) {
+  // The body is read once, within the form limit; the strategy gets the parsed form.
+  const form = await readFormData(request);
   const email = String(form.get("email") ?? "");
   try {
-    const user = await authenticator.authenticate("form", request);
+    const user = await authenticator.authenticate("form", new Request(request.url, {
+        method: "POST",
+        headers: { [CLIENT_ADDRESS_HEADER]: context?.clientAddress ?? "unknown" },
+        body: new URLSearchParams(form as unknown as Record<string, string>),
+      }));
     const cookie = await createUserSession(user.id);
     return redirect(safeRedirect(form.get("redirectTo")), { headers: { "Set-Cookie": cookie } });
   } catch (error) {

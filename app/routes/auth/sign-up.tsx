@@ -2,7 +2,8 @@ import { Form, Link, redirect, data } from "react-router";
 import type { Route } from "./+types/sign-up";
 import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { parseForm, formFailure } from "~/lib/forms.ts";
-import { SignUpSchema, signUp, UserFacingError } from "~/server/accounts.server.ts";
+import { findUserByEmail, SignUpSchema, signUp, UserFacingError } from "~/server/accounts.server.ts";
+import { appUrl, composeMail, sendMail } from "~/server/mail.server.ts";
 import { getSessionUser } from "~/server/session.server.ts";
 import { readFormData } from "~/server/form-data.server.ts";
 
@@ -18,11 +19,23 @@ export async function action({ request }: Route.ActionArgs) {
   const parsed = parseForm(SignUpSchema, form);
   if (!parsed.ok) return data(parsed, { status: 400 });
   try {
+    const taken = await findUserByEmail(parsed.data.email);
+    if (taken) {
+      // The owner of the address hears about it; the page does not echo the password.
+      void sendMail(
+        composeMail(taken.email, "Someone tried to create a Blindcut account with your address", [
+          "A new Blindcut lab was requested with this e-mail address, which already has an account. Nothing was created.",
+          "If it was you, sign in instead, or reset your password if you forgot it. If it was not you, you can ignore this mail.",
+        ], { label: "Sign in", url: appUrl("/sign-in") }),
+      ).catch((error) => console.error("[blindcut] sign-up notice failed", error));
+    }
     const { lab, cookie } = await signUp(parsed.data);
     return redirect(`/labs/${lab.id}`, { headers: { "Set-Cookie": cookie } });
   } catch (error) {
     if (error instanceof UserFacingError) {
-      return data(formFailure(parsed.data as unknown as Record<string, string>, error.field ? { [error.field]: error.message } : {}, error.field ? undefined : error.message), { status: 400 });
+      // The password is never sent back in page data.
+      const { password: _password, ...kept } = parsed.data;
+      return data(formFailure(kept as unknown as Record<string, string>, error.field ? { [error.field]: error.message } : {}, error.field ? undefined : error.message), { status: 400 });
     }
     throw error;
   }

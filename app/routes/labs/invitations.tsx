@@ -23,13 +23,13 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (form.get("intent") === "revoke") {
       const parsed = parseForm(z.object({ invitationId: z.string().uuid("Unknown invitation") }), form);
       if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
-      await revokeInvitation(user.id, lab.id, parsed.data.invitationId);
+      await revokeInvitation({ id: user.id, role }, lab.id, parsed.data.invitationId);
       return { ok: true as const, errors: {}, values: {}, done: "Invitation revoked.", formError: undefined };
     }
     const parsed = parseForm(InviteSchema, form);
     if (!parsed.ok) return data({ ...parsed, done: null }, { status: 400 });
     const { token } = await createInvitation({ id: user.id, role }, lab.id, parsed.data);
-    const url = appUrl(request, `/invitations/${token}`);
+    const url = appUrl(`/invitations/${token}`);
     await sendMail(
       composeMail(parsed.data.email, `You are invited to ${lab.name} on Blindcut`, [
         `${user.name} invites you to join ${lab.name} on Blindcut as ${ROLE_LABELS[parsed.data.role].article}.`,

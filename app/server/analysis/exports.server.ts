@@ -1,4 +1,4 @@
-import Papa from "papaparse";
+import { toCsv, type CsvCell } from "~/lib/csv.ts";
 import { canonicalHash } from "~/domain/canonical-hash.ts";
 import { BUNDLE_FORMAT, BUNDLE_FORMAT_VERSION, type Bundle } from "~/domain/bundle.ts";
 import type { StudyAnalysis } from "~/domain/study-analysis.ts";
@@ -19,7 +19,7 @@ export function buildBundle(record: StudyRecord, analysis: StudyAnalysis): Bundl
   };
 }
 
-const csv = (fields: string[], rows: unknown[][]) => Papa.unparse({ fields, data: rows }, { escapeFormulae: true });
+const csv = (fields: string[], rows: CsvCell[][]) => toCsv(fields, rows);
 
 /** Raw readings in long form, corrections kept with what they supersede. */
 export function readingsCsv(record: StudyRecord): string {

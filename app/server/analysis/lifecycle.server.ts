@@ -67,7 +67,7 @@ export async function mailAnalysts(request: Request, labId: string, studyId: str
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.labId, labId), inArray(memberships.role, ["analyst"])));
-  const url = appUrl(request, `/labs/${labId}/studies/${studyId}/results`);
+  const url = appUrl(`/labs/${labId}/studies/${studyId}/results`);
   for (const a of analysts) {
     const mail =
       what === "closed"

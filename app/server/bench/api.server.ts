@@ -1,5 +1,6 @@
 import type { z } from "zod";
 import { isStudyFrozenError } from "../db-errors.server.ts";
+import { BodyTooLargeError, JSON_BODY_LIMIT, mediaType, readBodyLimited } from "../body-limit.server.ts";
 
 /** A request the bench cannot do now, with a message the tester or lead can act on. */
 export class BenchError extends Error {
@@ -24,12 +25,17 @@ export function zodIssues(error: z.ZodError): ApiIssue[] {
 
 /** Reads a JSON body, or a 400 in words. */
 export async function readJson(request: Request): Promise<unknown> {
-  const type = request.headers.get("content-type") ?? "";
-  if (!type.includes("application/json")) throw new BenchError("Send the body as JSON (Content-Type: application/json)", 415);
-  const text = await request.text();
-  if (text.length > 2_000_000) throw new BenchError("The body is too large", 413);
+  // The media type is parsed: "text/plain; x=application/json" is not JSON.
+  if (mediaType(request.headers.get("content-type")) !== "application/json") throw new BenchError("Send the body as JSON (Content-Type: application/json)", 415);
+  let bytes: Uint8Array;
   try {
-    return JSON.parse(text);
+    bytes = await readBodyLimited(request, JSON_BODY_LIMIT);
+  } catch (error) {
+    if (error instanceof BodyTooLargeError) throw new BenchError(`The body is larger than ${JSON_BODY_LIMIT / 1024 / 1024} MB`, 413);
+    throw new BenchError("The body could not be read");
+  }
+  try {
+    return JSON.parse(new TextDecoder().decode(bytes));
   } catch {
     throw new BenchError("The body is not valid JSON");
   }

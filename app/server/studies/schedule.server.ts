@@ -11,6 +11,7 @@ import { regenerateSchedule, startStudyTx } from "./randomize.server.ts";
 import { DesignerError } from "./designer.server.ts";
 import { balanceSummary } from "~/domain/randomization/index.ts";
 import { formatBlindCode } from "~/domain/blind-codes.ts";
+import { toCsv } from "~/lib/csv.ts";
 
 async function studyOfLab(labId: string, studyId: string) {
   const [study] = await db().select().from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
@@ -94,27 +95,17 @@ export async function labelSheet(labId: string, studyId: string) {
 
 const CSV_COLUMNS = ["position", "sitting", "tester", "tester_email", "blind_code", "blade_run", "replicate", "neutral_label", "arm_or_condition", "inventory_number", "state"] as const;
 
-function csvCell(value: string | number) {
-  const s = String(value);
-  // Quote what needs it, and defuse spreadsheet formulas.
-  const safe = /^[=+\-@\t\r]/.test(s) ? `'${s}` : s;
-  return /[",\n\r]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
-}
 
 /** The schedule as CSV, one row per run: the lead's key (codes with their blades and arms), not for the bench. */
 export async function scheduleCsv(labId: string, studyId: string) {
   const study = await studyOfLab(labId, studyId);
   if (study.state === "draft") throw new DesignerError("Randomize the study first: a draft has no schedule.", 409);
   const rows = await scheduleRows(studyId);
-  const lines = [CSV_COLUMNS.join(",")];
-  for (const r of rows) {
-    lines.push(
-      [r.position, r.sitting, r.testerName, r.testerEmail, r.blindCode ? formatBlindCode(r.blindCode) : "", r.bladeRunNumber, r.replicate, r.neutralLabel ?? "", r.armName, r.inventoryNumber, r.state]
-        .map(csvCell)
-        .join(","),
-    );
-  }
-  return { study, csv: `${lines.join("\r\n")}\r\n` };
+  const csv = toCsv(
+    CSV_COLUMNS,
+    rows.map((r) => [r.position, r.sitting, r.testerName, r.testerEmail, r.blindCode ? formatBlindCode(r.blindCode) : "", r.bladeRunNumber, r.replicate, r.neutralLabel ?? "", r.armName, r.inventoryNumber, r.state]),
+  );
+  return { study, csv };
 }
 
 /**
@@ -125,7 +116,7 @@ export async function scheduleCsv(labId: string, studyId: string) {
  */
 export async function startStudy(actorId: string, labId: string, studyId: string, request: Request) {
   const { study, testers } = await db().transaction((tx) => startStudyTx(tx, actorId, labId, studyId));
-  const link = appUrl(request, "/bench");
+  const link = appUrl("/bench");
   const failed: string[] = [];
   for (const t of testers) {
     const mail = composeMail(

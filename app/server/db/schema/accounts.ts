@@ -77,9 +77,23 @@ export const signInFailures = pgTable(
   {
     id: uuid("id").primaryKey().defaultRandom(),
     email: text("email").notNull(),
+    // The client's address as the server sees it (TRUST_PROXY decides whether a proxy's header counts).
+    clientAddress: text("client_address"),
     at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [index("sign_in_failures_email_at").on(t.email, t.at)],
+  (t) => [index("sign_in_failures_email_at").on(t.email, t.at), index("sign_in_failures_client_at").on(t.clientAddress, t.at)],
+);
+
+// Password-reset requests, counted per address and per client to throttle them.
+export const resetRequests = pgTable(
+  "reset_requests",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    email: text("email").notNull(),
+    clientAddress: text("client_address").notNull(),
+    at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("reset_requests_email_at").on(t.email, t.at), index("reset_requests_client_at").on(t.clientAddress, t.at)],
 );
 
 export type Lab = typeof labs.$inferSelect;
