@@ -6,7 +6,7 @@ import { writeFileSync } from "node:fs";
 import path from "node:path";
 import { startSmtpCatcher } from "./fakes/smtp.ts";
 import { startS3Fake } from "./fakes/s3.ts";
-import { portFree, portTakenMessage } from "./ports.mjs";
+import { describeHolder, portFree, portTakenMessage } from "./ports.mjs";
 
 const host = "127.0.0.1";
 const localDir = process.env.BLINDCUT_LOCAL_DIR ?? path.resolve(".blindcut");
@@ -22,7 +22,7 @@ async function choosePort(service: string, variable: string, fallback: number): 
     return port;
   }
   if (await portFree(fallback, host)) return fallback;
-  log(`${service}: port ${fallback} is taken by another program, so a free port is used instead (${variable} sets one).`);
+  log(`${service}: port ${fallback} is taken by ${describeHolder(fallback)}, so a free port is used instead (${variable} sets one).`);
   return 0;
 }
 
