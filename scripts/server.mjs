@@ -6,6 +6,7 @@ import express from "express";
 import helmet from "helmet";
 import { randomBytes } from "node:crypto";
 import path from "node:path";
+import { portTakenMessage } from "./ports.mjs";
 
 const ROOT = path.resolve(path.dirname(new URL(import.meta.url).pathname), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -88,7 +89,13 @@ app.all(
   }),
 );
 
-const server = app.listen(port, host, () => {
+const server = app.listen(port, host, (err) => {
+  if (err) {
+    // A taken port is the user's to fix: one line naming it and the variable, no stack trace.
+    if (err.code === "EADDRINUSE") console.error(`[blindcut] ${portTakenMessage({ service: "The app", port, host, variable: "PORT" })}`);
+    else console.error(`[blindcut] The app cannot listen on ${host}:${port}: ${err.message}`);
+    process.exit(2);
+  }
   // Mailed links use APP_URL, else (outside production) this listening origin, never a request's Host.
   process.env.BLINDCUT_LISTEN_ORIGIN = `http://localhost:${server.address().port}`;
   console.log(`[blindcut] app listening on http://localhost:${port}`);
