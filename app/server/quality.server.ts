@@ -1,0 +1,152 @@
+import { and, asc, eq, inArray } from "drizzle-orm";
+import { db, type Transaction } from "./db.server.ts";
+import { blades, instruments, mediaLots, protocols, protocolVersions, referenceBlades, runs, studies, studyArms, studyBlades } from "./db/schema/index.ts";
+import { recordAudit } from "./audit.server.ts";
+import { analysisInput, loadStudyRecord } from "./analysis/study-data.server.ts";
+import { runResults } from "~/domain/study-analysis.ts";
+import { ewmaChart, individualsChart, type EwmaChart, type IndividualsChart } from "~/domain/quality/index.ts";
+
+export class QualityError extends Error {
+  constructor(message: string, public readonly field?: string, public readonly status = 400) {
+    super(message);
+  }
+}
+
+/** Points of the declared baseline period of every reference chart (the first N reference runs). */
+export const BASELINE_RUNS = 12;
+
+/**
+ * Marks a blade as a reference cut under one protocol version, and opens its reference
+ * series: a study of kind "reference" with one unblinded arm, so its runs go through the bench unchanged.
+ */
+export function markReferenceBlade(labId: string, actorId: string, input: { bladeId: string; protocolVersionId: string | null; note?: string }) {
+  return db().transaction((tx) => markReferenceBladeTx(tx, labId, actorId, input));
+}
+
+export async function markReferenceBladeTx(tx: Transaction, labId: string, actorId: string, input: { bladeId: string; protocolVersionId: string | null; note?: string }, isDemo = false) {
+  if (!input.protocolVersionId) throw new QualityError("Choose the protocol version the reference is cut under.", "protocolVersionId");
+  {
+    const [blade] = await tx.select().from(blades).where(and(eq(blades.id, input.bladeId), eq(blades.labId, labId)));
+    if (!blade) throw new QualityError("No such blade in this lab.", "bladeId", 404);
+    const [version] = await tx.select().from(protocolVersions).where(and(eq(protocolVersions.id, input.protocolVersionId!), eq(protocolVersions.labId, labId)));
+    if (!version) throw new QualityError("No such protocol version in this lab.", "protocolVersionId", 404);
+    const [already] = await tx.select().from(referenceBlades).where(and(eq(referenceBlades.labId, labId), eq(referenceBlades.bladeId, blade.id)));
+    if (already) throw new QualityError(`${blade.inventoryNumber} is already a reference.`, "bladeId", 409);
+    const [series] = await tx
+      .insert(studies)
+      .values({ labId, kind: "reference", shortName: `Reference ${blade.inventoryNumber}`, question: "Reference series: drift of medium, instrument and testers", protocolVersionId: version.id, state: "running", isDemo, createdBy: actorId, startedAt: new Date() })
+      .returning();
+    const [arm] = await tx.insert(studyArms).values({ studyId: series.id, labId, name: "Reference", position: 0, neutralLabel: "Reference" }).returning();
+    const [studyBlade] = await tx.insert(studyBlades).values({ studyId: series.id, labId, bladeId: blade.id, armId: arm.id, blindCode: `REF-${blade.inventoryNumber}` }).returning();
+    const [reference] = await tx.insert(referenceBlades).values({ labId, bladeId: blade.id, protocolVersionId: version.id, seriesStudyId: series.id, note: input.note ?? "", markedBy: actorId }).returning();
+    await recordAudit(tx, { labId, actorId, action: "quality.reference_marked", objectType: "reference_blade", objectId: reference.id, details: { bladeId: blade.id, protocolVersionId: version.id, studyId: series.id } });
+    return { ...reference, armId: arm.id, studyBladeId: studyBlade.id };
+  }
+}
+
+/**
+ * Assigns a reference run to a tester: a run of the reference series, recorded with its media lot,
+ * instrument, room temperature and humidity; the bench captures it like any run.
+ */
+export async function addReferenceRunTx(
+  tx: Transaction,
+  labId: string,
+  actorId: string,
+  input: { referenceId: string; testerId: string; mediaLotId: string; instrumentId: string; roomTempC: number | null; humidityPct: number | null },
+) {
+  const [ref] = await tx.select().from(referenceBlades).where(and(eq(referenceBlades.id, input.referenceId), eq(referenceBlades.labId, labId)));
+  if (!ref) throw new QualityError("No such reference in this lab.", "referenceId", 404);
+  const [lot] = await tx.select({ id: mediaLots.id }).from(mediaLots).where(and(eq(mediaLots.id, input.mediaLotId), eq(mediaLots.labId, labId)));
+  if (!lot) throw new QualityError("Choose a media lot of this lab.", "mediaLotId");
+  const [inst] = await tx.select({ id: instruments.id }).from(instruments).where(and(eq(instruments.id, input.instrumentId), eq(instruments.labId, labId)));
+  if (!inst) throw new QualityError("Choose an instrument of this lab.", "instrumentId");
+  const [sb] = await tx.select().from(studyBlades).where(eq(studyBlades.studyId, ref.seriesStudyId));
+  const existing = await tx.select({ id: runs.id }).from(runs).where(eq(runs.studyId, ref.seriesStudyId));
+  const n = existing.length + 1;
+  const [run] = await tx
+    .insert(runs)
+    .values({ labId, studyId: ref.seriesStudyId, studyBladeId: sb.id, armId: sb.armId!, replicate: n, bladeRunNumber: n, schedulePosition: n, sitting: n, testerId: input.testerId, mediaLotId: lot.id, instrumentId: inst.id, roomTempC: input.roomTempC, humidityPct: input.humidityPct })
+    .returning();
+  await recordAudit(tx, { labId, actorId, action: "quality.reference_run_assigned", objectType: "run", objectId: run.id, details: { studyId: ref.seriesStudyId, referenceId: ref.id, mediaLotId: lot.id, instrumentId: inst.id, testerId: input.testerId } });
+  return run;
+}
+
+export type ReferencePoint = {
+  runId: string;
+  at: string;
+  lot: string;
+  instrument: string;
+  tester: string;
+  cutsToThreshold: number | null;
+  baseline: number | null;
+  censored: boolean;
+};
+
+export type ReferenceChart = {
+  outcome: "cuts_to_threshold" | "baseline";
+  label: string;
+  unit: string;
+  points: ReferencePoint[];
+  individuals: IndividualsChart;
+  ewma: EwmaChart | null;
+};
+
+/** Every reference of the lab with its runs in time order and the two charts per outcome. */
+export async function qualityOverview(labId: string) {
+  const refs = await db()
+    .select({ id: referenceBlades.id, seriesStudyId: referenceBlades.seriesStudyId, inventory: blades.inventoryNumber, steel: blades.steel, version: protocolVersions.version, protocolName: protocols.name })
+    .from(referenceBlades)
+    .innerJoin(blades, eq(blades.id, referenceBlades.bladeId))
+    .innerJoin(protocolVersions, eq(protocolVersions.id, referenceBlades.protocolVersionId))
+    .innerJoin(protocols, eq(protocols.id, protocolVersions.protocolId))
+    .where(eq(referenceBlades.labId, labId))
+    .orderBy(asc(blades.inventoryNumber));
+  const out = [];
+  for (const ref of refs) {
+    const record = await loadStudyRecord(labId, ref.seriesStudyId);
+    if (!record) continue;
+    const results = record.protocol ? runResults(analysisInput(record)) : [];
+    const byRun = new Map(results.map((r) => [r.runId, r]));
+    const lotIds = [...new Set(record.runs.map((r) => r.mediaLotId).filter((x): x is string => !!x))];
+    const instrumentIds = [...new Set(record.runs.map((r) => r.instrumentId).filter((x): x is string => !!x))];
+    const lots = lotIds.length ? await db().select({ id: mediaLots.id, code: mediaLots.lotCode }).from(mediaLots).where(inArray(mediaLots.id, lotIds)) : [];
+    const insts = instrumentIds.length ? await db().select({ id: instruments.id, name: instruments.name }).from(instruments).where(inArray(instruments.id, instrumentIds)) : [];
+    const people = new Map(record.people.map((p) => [p.id, p.name]));
+    const lotName = new Map(lots.map((l) => [l.id, l.code]));
+    const instName = new Map(insts.map((i) => [i.id, i.name]));
+    const points: ReferencePoint[] = record.runs
+      .filter((r) => r.state === "ended_threshold" || r.state === "censored")
+      .map((r) => {
+        const res = byRun.get(r.id);
+        return {
+          runId: r.id,
+          at: (r.endedAt ?? r.updatedAt).toISOString(),
+          lot: r.mediaLotId ? lotName.get(r.mediaLotId) ?? "?" : "not recorded",
+          instrument: r.instrumentId ? instName.get(r.instrumentId) ?? "?" : "not recorded",
+          tester: people.get(r.testerId) ?? "?",
+          cutsToThreshold: res?.force?.cutsToThreshold ?? null,
+          baseline: res?.force?.baseline ?? null,
+          censored: res?.force?.censored ?? false,
+        };
+      })
+      .sort((a, b) => a.at.localeCompare(b.at));
+    const charts: ReferenceChart[] = (["cuts_to_threshold", "baseline"] as const).map((outcome) => {
+      const usable = points.filter((p) => (outcome === "cuts_to_threshold" ? p.cutsToThreshold : p.baseline) !== null);
+      const values = usable.map((p) => (outcome === "cuts_to_threshold" ? p.cutsToThreshold! : p.baseline!));
+      const individuals = individualsChart(values, BASELINE_RUNS);
+      const ewma = individuals.status === "limits" ? ewmaChart(values, { centre: individuals.limits.centre, sigma: individuals.limits.sigma }) : null;
+      return { outcome, label: outcome === "cuts_to_threshold" ? "Cuts to threshold" : "Baseline sharpness", unit: outcome === "cuts_to_threshold" ? "cuts" : "gf", points: usable, individuals, ewma };
+    });
+    out.push({ ...ref, runs: record.runs.length, charts });
+  }
+  return out;
+}
+
+/** Options for the reference form: blades not yet references, and the lab's protocol versions. */
+export async function referenceFormOptions(labId: string) {
+  const [bladeRows, versions] = await Promise.all([
+    db().select({ id: blades.id, inventory: blades.inventoryNumber, steel: blades.steel }).from(blades).where(eq(blades.labId, labId)).orderBy(asc(blades.inventoryNumber)),
+    db().select({ id: protocolVersions.id, version: protocolVersions.version, name: protocols.name }).from(protocolVersions).innerJoin(protocols, eq(protocols.id, protocolVersions.protocolId)).where(eq(protocolVersions.labId, labId)).orderBy(asc(protocols.name), asc(protocolVersions.version)),
+  ]);
+  return { blades: bladeRows, versions };
+}
