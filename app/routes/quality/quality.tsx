@@ -6,7 +6,8 @@ import { EmptyState } from "~/components/table.tsx";
 import { VegaChart, CHART_COLORS } from "~/components/vega-chart.tsx";
 import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { readFormData } from "~/server/form-data.server.ts";
-import { BASELINE_RUNS, QualityError, markReferenceBlade, qualityOverview, referenceFormOptions, type ReferenceChart } from "~/server/quality.server.ts";
+import { BASELINE_RUNS, QualityError, markReferenceBlade, qualityOverview, referenceFormOptions } from "~/server/quality.server.ts";
+import type { ReferenceChart } from "~/server/quality.server.ts";
 import { SIGNAL_RULES } from "~/domain/quality/index.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Quality · Blindcut" }];
@@ -21,7 +22,7 @@ const MarkInput = z.object({
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab, role } = await requireLabRole(request, params.labId, READERS);
   const [references, options] = await Promise.all([qualityOverview(lab.id), MANAGERS.includes(role) ? referenceFormOptions(lab.id) : null]);
-  return { lab, canManage: MANAGERS.includes(role), references, options };
+  return { lab, canManage: MANAGERS.includes(role), references, options, baselineRuns: BASELINE_RUNS };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -85,10 +86,10 @@ function ewmaSpec(chart: ReferenceChart) {
 }
 
 export default function Quality({ loaderData, actionData }: Route.ComponentProps) {
-  const { references, options, canManage } = loaderData;
+  const { references, options, canManage, baselineRuns } = loaderData;
   return (
     <div>
-      <PageTitle lead={`Reference blades cut under a fixed protocol at intervals and on every new lot. Each chart's centre and limits come from the first ${BASELINE_RUNS} reference runs (the baseline period); sigma is the average moving range / 1.128 (Montgomery, Introduction to Statistical Quality Control, section 6.4). Several rules are checked at once, so an in-control process flags now and then: a flag is a prompt to look, not a verdict.`}>
+      <PageTitle lead={`Reference blades cut under a fixed protocol at intervals and on every new lot. Each chart's centre and limits come from the first ${baselineRuns} reference runs (the baseline period); sigma is the average moving range / 1.128 (Montgomery, Introduction to Statistical Quality Control, section 6.4). Several rules are checked at once, so an in-control process flags now and then: a flag is a prompt to look, not a verdict.`}>
         The lab's quality
       </PageTitle>
       <FormAlert message={actionData?.error ?? undefined} />
