@@ -1,10 +1,11 @@
 import { and, asc, eq, inArray } from "drizzle-orm";
 import { db, type Transaction } from "./db.server.ts";
-import { blades, instruments, mediaLots, protocols, protocolVersions, referenceBlades, runs, studies, studyArms, studyBlades } from "./db/schema/index.ts";
+import { blades, instruments, mediaLots, precisionReadings, precisionStudies, protocols, protocolVersions, referenceBlades, runs, studies, studyArms, studyBlades } from "./db/schema/index.ts";
 import { recordAudit } from "./audit.server.ts";
 import { analysisInput, loadStudyRecord } from "./analysis/study-data.server.ts";
 import { runResults } from "~/domain/study-analysis.ts";
-import { ewmaChart, individualsChart, type EwmaChart, type IndividualsChart } from "~/domain/quality/index.ts";
+import { analyzePrecision, ewmaChart, individualsChart, precisionDesignProblems, precisionReadingOrder, type EwmaChart, type IndividualsChart, type PrecisionAnalysis } from "~/domain/quality/index.ts";
+import { canonicalHash } from "~/domain/canonical-hash.ts";
 
 export class QualityError extends Error {
   constructor(message: string, public readonly field?: string, public readonly status = 400) {
@@ -149,4 +150,56 @@ export async function referenceFormOptions(labId: string) {
     db().select({ id: protocolVersions.id, version: protocolVersions.version, name: protocols.name }).from(protocolVersions).innerJoin(protocols, eq(protocols.id, protocolVersions.protocolId)).where(eq(protocolVersions.labId, labId)).orderBy(asc(protocols.name), asc(protocolVersions.version)),
   ]);
   return { blades: bladeRows, versions };
+}
+
+/**
+ * Sets up a repeatability study on one instrument with its seeded reading order.
+ * Refuses one tester, one edge or one repeat with the reason, before anything is written.
+ */
+export async function createPrecisionStudyTx(
+  tx: Transaction,
+  labId: string,
+  actorId: string,
+  input: { instrumentId: string; name: string; testerIds: string[]; edgeBladeIds: string[]; repeats: number; seed: string },
+) {
+  const problems = precisionDesignProblems({ testers: new Set(input.testerIds).size, edges: new Set(input.edgeBladeIds).size, repeats: input.repeats });
+  if (problems.length) throw new QualityError(problems.join(" "), "design");
+  const [inst] = await tx.select({ id: instruments.id }).from(instruments).where(and(eq(instruments.id, input.instrumentId), eq(instruments.labId, labId)));
+  if (!inst) throw new QualityError("Choose an instrument of this lab.", "instrumentId", 404);
+  const edgeRows = await tx.select({ id: blades.id }).from(blades).where(and(inArray(blades.id, input.edgeBladeIds), eq(blades.labId, labId)));
+  if (edgeRows.length !== new Set(input.edgeBladeIds).size) throw new QualityError("Every edge must be a blade of this lab.", "edgeBladeIds", 404);
+  const readingOrder = precisionReadingOrder({ testers: input.testerIds, edges: input.edgeBladeIds, repeats: input.repeats }, input.seed);
+  const [study] = await tx.insert(precisionStudies).values({ labId, instrumentId: inst.id, name: input.name, testerIds: input.testerIds, edgeBladeIds: input.edgeBladeIds, repeats: input.repeats, seed: input.seed, readingOrder, createdBy: actorId }).returning();
+  await recordAudit(tx, { labId, actorId, action: "quality.precision_study_created", objectType: "precision_study", objectId: study.id, details: { instrumentId: inst.id, testers: input.testerIds.length, edges: input.edgeBladeIds.length, repeats: input.repeats, seed: input.seed } });
+  return study;
+}
+
+/** Records one reading of a repeatability study (hashed, audited). */
+export async function recordPrecisionReadingTx(tx: Transaction, labId: string, input: { studyId: string; testerId: string; bladeId: string; repeat: number; valueGf: number; at?: Date }) {
+  if (!Number.isFinite(input.valueGf) || input.valueGf <= 0) throw new QualityError("A sharpness reading must be a positive number of grams-force.", "valueGf");
+  const at = input.at ?? new Date();
+  const content = { studyId: input.studyId, testerId: input.testerId, bladeId: input.bladeId, repeat: input.repeat, valueGf: input.valueGf, enteredAt: at.toISOString() };
+  const [row] = await tx.insert(precisionReadings).values({ labId, ...content, enteredAt: at, contentHash: canonicalHash(content) }).returning();
+  await recordAudit(tx, { labId, actorId: input.testerId, action: "quality.precision_reading_recorded", objectType: "precision_reading", objectId: row.id, details: { studyId: input.studyId, contentHash: row.contentHash } });
+  return row;
+}
+
+/** The repeatability studies of an instrument with their analysis (finished ones) or progress. */
+export async function precisionForInstrument(labId: string, instrumentId: string) {
+  const rows = await db().select().from(precisionStudies).where(and(eq(precisionStudies.labId, labId), eq(precisionStudies.instrumentId, instrumentId))).orderBy(asc(precisionStudies.createdAt));
+  const out = [];
+  for (const s of rows) {
+    const rs = await db().select().from(precisionReadings).where(eq(precisionReadings.studyId, s.id));
+    let analysis: PrecisionAnalysis | null = null;
+    let problem: string | null = null;
+    if (s.finishedAt) {
+      try {
+        analysis = analyzePrecision(rs.map((r) => ({ tester: r.testerId, edge: r.bladeId, value: r.valueGf })));
+      } catch (error) {
+        problem = error instanceof Error ? error.message : String(error);
+      }
+    }
+    out.push({ id: s.id, name: s.name, testers: s.testerIds.length, edges: s.edgeBladeIds.length, repeats: s.repeats, seed: s.seed, readings: rs.length, planned: s.readingOrder.length, finishedAt: s.finishedAt?.toISOString() ?? null, analysis, problem });
+  }
+  return out;
 }

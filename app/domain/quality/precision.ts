@@ -14,6 +14,7 @@
  */
 import jStat from "jstat";
 import { assertFinite, assertLevel } from "../stats/validate.ts";
+import { createRandomSource, shuffle } from "../randomization/prng.ts";
 
 /** One reading: the tester, the edge and the value in grams-force. */
 export interface PrecisionReading {
@@ -220,4 +221,30 @@ export function precisionDesignProblems(design: { testers: number; edges: number
   if (!Number.isInteger(design.edges) || design.edges < 2) problems.push("Choose at least two edges: the tester x edge interaction needs two.");
   if (!Number.isInteger(design.repeats) || design.repeats < 2) problems.push("Choose at least two repeated readings per tester and edge: with one, repeatability cannot be estimated.");
   return problems;
+}
+
+/** One slot of a repeatability study's reading order. */
+export interface PrecisionSlot {
+  tester: string;
+  edge: string;
+  repeat: number;
+}
+
+/**
+ * The reading order of a repeatability study from a recorded seed: for each tester, r rounds, each
+ * round every edge once in a fresh seeded order (seedrandom through the randomization module), so a tester
+ * never reads the same edge twice in a row within a round and meets each edge again only after the others.
+ * @throws Error when the design is refused by precisionDesignProblems
+ */
+export function precisionReadingOrder(design: { testers: readonly string[]; edges: readonly string[]; repeats: number }, seed: string): PrecisionSlot[] {
+  const problems = precisionDesignProblems({ testers: design.testers.length, edges: design.edges.length, repeats: design.repeats });
+  if (problems.length) throw new Error(`precisionReadingOrder: ${problems.join(" ")}`);
+  const source = createRandomSource(seed, "precision-reading-order");
+  const out: PrecisionSlot[] = [];
+  for (const tester of design.testers) {
+    for (let repeat = 1; repeat <= design.repeats; repeat++) {
+      for (const edge of shuffle(source, design.edges)) out.push({ tester, edge, repeat });
+    }
+  }
+  return out;
 }

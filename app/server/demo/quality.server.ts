@@ -3,9 +3,10 @@
 // lots; the third lot dulls the edge faster run by run (an invented drift), so its runs are flagged.
 import { and, eq } from "drizzle-orm";
 import type { Transaction } from "../db.server.ts";
-import { blades, mediaLots, protocolVersions } from "../db/schema/index.ts";
+import seedrandom from "seedrandom";
+import { blades, mediaLots, precisionStudies, protocolVersions } from "../db/schema/index.ts";
 import { recordSimulatedRun } from "../simulated-runs.server.ts";
-import { addReferenceRunTx, markReferenceBladeTx } from "../quality.server.ts";
+import { addReferenceRunTx, createPrecisionStudyTx, markReferenceBladeTx, recordPrecisionReadingTx } from "../quality.server.ts";
 import { toForceProtocol, type ProtocolContent } from "~/domain/protocol.ts";
 import type { EdgeForceModel } from "~/domain/simulator.ts";
 import type { DemoLibrary } from "./library.server.ts";
@@ -61,5 +62,29 @@ export async function loadDemoQuality(
     });
     await recordSimulatedRun(tx, { labId, runId: run.id, testerId: people.testerIds[i % 2], protocol, model: referenceModel(loss), seed: `demo-reference/run-${i + 1}`, startAt: new Date(now - (365 - i * 12) * DAY) });
   }
+  // The repeatability study reads the reference blade and four blades of the finished temper trial at their end state.
+  await loadDemoPrecision(tx, labId, people, library, [blade.id, ...library.bladeIds.temperLow.slice(0, 4)]);
   return { referenceId: reference.id, referenceBladeId: blade.id };
+}
+
+/**
+ * A finished repeatability study on the demo sharpness tester: 2 testers x 5 edges x 3 readings,
+ * in the seeded reading order. Invented readings: edge levels 140-260 gf, a tester offset of a few gf,
+ * reading noise SD 8 gf (all invented for the demo).
+ */
+export async function loadDemoPrecision(tx: Transaction, labId: string, people: { leadId: string; testerIds: [string, string] }, library: DemoLibrary, edgeBladeIds: string[]) {
+  const seed = "demo-repeatability-1";
+  const study = await createPrecisionStudyTx(tx, labId, people.leadId, { instrumentId: library.testerId, name: "Repeatability R-1 (demo)", testerIds: [...people.testerIds], edgeBladeIds, repeats: 3, seed });
+  const rng = seedrandom(`${seed}/readings`);
+  const normal = () => Math.sqrt(-2 * Math.log(1 - rng())) * Math.cos(2 * Math.PI * rng());
+  const edgeLevel = new Map(edgeBladeIds.map((id, i) => [id, 140 + 30 * i]));
+  const testerOffset = new Map(people.testerIds.map((id, i) => [id, i === 0 ? -3 : 3]));
+  let at = Date.now() - 14 * DAY;
+  for (const slot of study.readingOrder) {
+    at += 45_000;
+    const value = Math.round(edgeLevel.get(slot.edge)! + testerOffset.get(slot.tester)! + 8 * normal());
+    await recordPrecisionReadingTx(tx, labId, { studyId: study.id, testerId: slot.tester, bladeId: slot.edge, repeat: slot.repeat, valueGf: value, at: new Date(at) });
+  }
+  await tx.update(precisionStudies).set({ finishedAt: new Date(at) }).where(eq(precisionStudies.id, study.id));
+  return study;
 }
