@@ -4,8 +4,9 @@ import { blades, instruments, mediaLots, precisionReadings, precisionStudies, pr
 import { recordAudit } from "./audit.server.ts";
 import { analysisInput, loadStudyRecord } from "./analysis/study-data.server.ts";
 import { runResults } from "~/domain/study-analysis.ts";
-import { analyzePrecision, ewmaChart, individualsChart, precisionDesignProblems, precisionReadingOrder, type EwmaChart, type IndividualsChart, type PrecisionAnalysis } from "~/domain/quality/index.ts";
+import { SIGNAL_RULES, analyzePrecision, ewmaChart, individualsChart, precisionDesignProblems, precisionReadingOrder, type EwmaChart, type IndividualsChart, type PrecisionAnalysis } from "~/domain/quality/index.ts";
 import { canonicalHash } from "~/domain/canonical-hash.ts";
+import { formatBlindCode, generateBlindCodes } from "~/domain/blind-codes.ts";
 
 export class QualityError extends Error {
   constructor(message: string, public readonly field?: string, public readonly status = 400) {
@@ -33,12 +34,16 @@ export async function markReferenceBladeTx(tx: Transaction, labId: string, actor
     if (!version) throw new QualityError("No such protocol version in this lab.", "protocolVersionId", 404);
     const [already] = await tx.select().from(referenceBlades).where(and(eq(referenceBlades.labId, labId), eq(referenceBlades.bladeId, blade.id)));
     if (already) throw new QualityError(`${blade.inventoryNumber} is already a reference.`, "bladeId", 409);
+    // The bench knows the reference only by a blind code of the lab, like any blade: testers never see its
+    // inventory number or steel (the security rule holds even where no comparison is blinded).
+    const taken = await tx.select({ code: studyBlades.blindCode }).from(studyBlades).where(eq(studyBlades.labId, labId));
+    const [code] = generateBlindCodes(1, `reference/${blade.id}`, taken.map((t) => t.code).filter((c): c is string => !!c));
     const [series] = await tx
       .insert(studies)
-      .values({ labId, kind: "reference", shortName: `Reference ${blade.inventoryNumber}`, question: "Reference series: drift of medium, instrument and testers", protocolVersionId: version.id, state: "running", isDemo, createdBy: actorId, startedAt: new Date() })
+      .values({ labId, kind: "reference", shortName: `Reference series ${formatBlindCode(code)}`, question: "Reference series: drift of medium, instrument and testers", protocolVersionId: version.id, state: "running", isDemo, createdBy: actorId, startedAt: new Date() })
       .returning();
-    const [arm] = await tx.insert(studyArms).values({ studyId: series.id, labId, name: "Reference", position: 0, neutralLabel: "Reference" }).returning();
-    const [studyBlade] = await tx.insert(studyBlades).values({ studyId: series.id, labId, bladeId: blade.id, armId: arm.id, blindCode: `REF-${blade.inventoryNumber}` }).returning();
+    const [arm] = await tx.insert(studyArms).values({ studyId: series.id, labId, name: "Reference cuts", position: 0, neutralLabel: "Reference" }).returning();
+    const [studyBlade] = await tx.insert(studyBlades).values({ studyId: series.id, labId, bladeId: blade.id, armId: arm.id, blindCode: code }).returning();
     const [reference] = await tx.insert(referenceBlades).values({ labId, bladeId: blade.id, protocolVersionId: version.id, seriesStudyId: series.id, note: input.note ?? "", markedBy: actorId }).returning();
     await recordAudit(tx, { labId, actorId, action: "quality.reference_marked", objectType: "reference_blade", objectId: reference.id, details: { bladeId: blade.id, protocolVersionId: version.id, studyId: series.id } });
     return { ...reference, armId: arm.id, studyBladeId: studyBlade.id };
@@ -138,7 +143,8 @@ export async function qualityOverview(labId: string) {
       const ewma = individuals.status === "limits" ? ewmaChart(values, { centre: individuals.limits.centre, sigma: individuals.limits.sigma }) : null;
       return { outcome, label: outcome === "cuts_to_threshold" ? "Cuts to threshold" : "Baseline sharpness", unit: outcome === "cuts_to_threshold" ? "cuts" : "gf", points: usable, individuals, ewma };
     });
-    out.push({ ...ref, runs: record.runs.length, charts });
+    const code = record.enrolled[0]?.blindCode ?? null;
+    out.push({ ...ref, code: code ? formatBlindCode(code) : "—", runs: record.runs.length, charts });
   }
   return out;
 }
@@ -200,6 +206,22 @@ export async function precisionForInstrument(labId: string, instrumentId: string
       }
     }
     out.push({ id: s.id, name: s.name, testers: s.testerIds.length, edges: s.edgeBladeIds.length, repeats: s.repeats, seed: s.seed, readings: rs.length, planned: s.readingOrder.length, finishedAt: s.finishedAt?.toISOString() ?? null, analysis, problem });
+  }
+  return out;
+}
+
+/** The latest signal of each reference chart, for the lab's home (owners and leads). */
+export async function latestQualitySignals(labId: string) {
+  const overview = await qualityOverview(labId);
+  const out: { reference: string; outcome: string; rule: string; at: string; lot: string; instrument: string }[] = [];
+  for (const ref of overview) {
+    for (const chart of ref.charts) {
+      const all = [...chart.individuals.signals, ...(chart.ewma?.signals ?? [])].sort((a, b) => b.index - a.index);
+      const last = all[0];
+      if (!last) continue;
+      const p = chart.points[last.index];
+      out.push({ reference: ref.inventory, outcome: chart.label, rule: SIGNAL_RULES[last.rule].name, at: p.at.slice(0, 10), lot: p.lot, instrument: p.instrument });
+    }
   }
   return out;
 }

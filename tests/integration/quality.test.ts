@@ -23,11 +23,14 @@ describe("reference blades and the quality page", () => {
     const run = await db().transaction((tx) => addReferenceRunTx(tx, f.labId, f.lead.id, { referenceId: ref.id, testerId: f.testers[0].id, mediaLotId: lot.id, instrumentId: inst.id, roomTempC: 21, humidityPct: 50 }));
     expect(run.mediaLotId).toBe(lot.id);
     const page = await text(await f.analyst.client.get(`/labs/${f.labId}/quality`));
-    expect(page).toContain(f.ids.inventory[0]);
+    // Analysts see the reference by its code, never its inventory number; leads see both.
+    expect(page).not.toContain(f.ids.inventory[0]);
+    expect(page).toMatch(/Reference [A-Z0-9]{3}-[A-Z0-9]{3}/);
+    expect(await text(await f.lead.client.get(`/labs/${f.labId}/quality`))).toContain(f.ids.inventory[0]);
     expect(page).toContain("declared as 12 points and only 0 exist");
     // The reference series is not a study to compare: the studies list leaves it out.
     const list = await text(await f.lead.client.get(`/labs/${f.labId}/studies`));
-    expect(list).not.toContain(`Reference ${f.ids.inventory[0]}`);
+    expect(list).not.toContain("Reference series");
     // Audit events for the reference and its run.
     const events = await db().execute(sql`SELECT action FROM audit_events WHERE lab_id = ${f.labId} AND action LIKE 'quality.%' ORDER BY seq`);
     expect(events.rows.map((r) => r.action)).toEqual(["quality.reference_marked", "quality.reference_run_assigned"]);

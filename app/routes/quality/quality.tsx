@@ -22,7 +22,10 @@ const MarkInput = z.object({
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab, role } = await requireLabRole(request, params.labId, READERS);
   const [references, options] = await Promise.all([qualityOverview(lab.id), MANAGERS.includes(role) ? referenceFormOptions(lab.id) : null]);
-  return { lab, canManage: MANAGERS.includes(role), references, options, baselineRuns: BASELINE_RUNS };
+  const canManage = MANAGERS.includes(role);
+  // Analysts know a reference by its blind code only: no inventory number or steel reaches them.
+  const shown = canManage ? references : references.map((r) => ({ ...r, inventory: "", steel: "" }));
+  return { lab, canManage, references: shown, options, baselineRuns: BASELINE_RUNS };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -99,7 +102,7 @@ export default function Quality({ loaderData, actionData }: Route.ComponentProps
       ) : (
         references.map((ref) => (
           <section key={ref.id} className="mb-10" data-testid="reference">
-            <h2 className="text-2xl font-bold">{ref.inventory} · {ref.steel}</h2>
+            <h2 className="text-2xl font-bold">Reference {ref.code}{ref.inventory ? ` · ${ref.inventory} · ${ref.steel}` : ""}</h2>
             <p>Cut under {ref.protocolName} v{ref.version}. {ref.runs} reference runs; reference runs are not blinded.</p>
             {ref.charts.map((chart) => (
               <div key={chart.outcome} className="mt-4" data-testid={`chart-${chart.outcome}`}>

@@ -88,3 +88,23 @@ describe("crossed precision study (testers x edges x repeats)", () => {
     expect(precisionDesignProblems({ testers: 3, edges: 5, repeats: 2 })).toEqual([]);
   });
 });
+
+describe("repeatability reading order", () => {
+  it("is reproduced by its seed, covers every tester x edge x repeat once, and spaces each edge's readings", async () => {
+    const { precisionReadingOrder } = await import("~/domain/quality/index.ts");
+    const design = { testers: ["t1", "t2", "t3"], edges: ["e1", "e2", "e3", "e4"], repeats: 2 };
+    const a = precisionReadingOrder(design, "seed-1");
+    expect(precisionReadingOrder(design, "seed-1")).toEqual(a);
+    expect(precisionReadingOrder(design, "seed-2")).not.toEqual(a);
+    expect(a).toHaveLength(24);
+    expect(new Set(a.map((s) => `${s.tester}/${s.edge}/${s.repeat}`)).size).toBe(24);
+    // Within a tester's sequence, each round holds every edge once before any edge comes back.
+    for (const t of design.testers) {
+      const mine = a.filter((s) => s.tester === t);
+      expect(new Set(mine.slice(0, 4).map((s) => s.edge)).size).toBe(4);
+      expect(mine.slice(0, 4).every((s) => s.repeat === 1)).toBe(true);
+    }
+    expect(() => precisionReadingOrder({ ...design, testers: ["t1"] }, "s")).toThrow(/two testers/);
+    expect(() => precisionReadingOrder({ ...design, repeats: 1 }, "s")).toThrow(/two repeated readings/);
+  });
+});
