@@ -3,6 +3,7 @@ import type { Route } from "./+types/home";
 import { PageTitle } from "~/components/form.tsx";
 import { ALL_ROLES, requireLabRole } from "~/server/access.server.ts";
 import { membersOfLab } from "~/server/accounts.server.ts";
+import { latestQualitySignals } from "~/server/quality.server.ts";
 import { ROLE_LABELS } from "~/lib/roles.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.lab.name ?? "Lab"} · Blindcut` }];
@@ -11,15 +12,27 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab, role } = await requireLabRole(request, params.labId, ALL_ROLES);
   const members = await membersOfLab(lab.id);
   const testers = members.filter((m) => m.role === "tester").length;
-  return { lab, role, memberCount: members.length, testerCount: testers };
+  const qualitySignals = role === "owner" || role === "lead" ? await latestQualitySignals(lab.id) : [];
+  return { lab, role, memberCount: members.length, testerCount: testers, qualitySignals };
 }
 
 export default function LabHome({ loaderData }: Route.ComponentProps) {
-  const { lab, role, memberCount, testerCount } = loaderData;
+  const { lab, role, memberCount, testerCount, qualitySignals } = loaderData;
   const manage = role === "owner" || role === "lead";
   return (
     <div>
       <PageTitle lead={`Your role: ${ROLE_LABELS[role].name}. ${ROLE_LABELS[role].duty}`}>{lab.name}</PageTitle>
+      {qualitySignals.length ? (
+        <div className="mb-6 rounded border-l-4 border-fault bg-fault-soft p-3" data-testid="quality-signals">
+          <strong>Reference runs out of control.</strong>
+          <ul>
+            {qualitySignals.map((s) => (
+              <li key={`${s.reference}-${s.outcome}`}>{s.reference}, {s.outcome.toLowerCase()}: {s.rule} on {s.at} (lot {s.lot}, {s.instrument}).</li>
+            ))}
+          </ul>
+          <Link to={`/labs/${lab.id}/quality`}>Open the quality page</Link>
+        </div>
+      ) : null}
       {manage && testerCount === 0 ? (
         <p className="mb-6 rounded border-l-4 border-signal bg-signal-soft p-3">
           <strong>No testers yet.</strong> A blinded study needs at least one member with the tester role: owners and leads can
@@ -38,6 +51,7 @@ export default function LabHome({ loaderData }: Route.ComponentProps) {
           </>
         ) : null}
         {role !== "tester" ? <Tile to={`/labs/${lab.id}/results`} title="Results" text="Closed studies: blinded results, unblinding, reports and exports" /> : null}
+        {role !== "tester" ? <Tile to={`/labs/${lab.id}/quality`} title="Quality" text="Reference blades on control charts; drift of rope lots, instruments and testers" /> : null}
         <Tile to={`/labs/${lab.id}/protocols`} title="Protocols" text={manage ? "Write, publish and compare cut-test protocols" : "Read and print the lab's published protocols"} />
         <Tile to="/labs?all" title="Switch lab" text="Your other labs" />
       </ul>

@@ -1,5 +1,7 @@
 import { Form, data } from "react-router";
 import type { Route } from "./+types/instrument";
+import { precisionForInstrument } from "~/server/quality.server.ts";
+import { PrecisionResults } from "~/components/quality/precision-result.tsx";
 import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
 import { EmptyState, LibraryNav } from "~/components/table.tsx";
 import { CalibrationBadge } from "~/components/calibration-badge.tsx";
@@ -15,7 +17,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab } = await requireLabRole(request, params.labId, MANAGERS);
   const instrument = isUuid(params.instrumentId) ? await getInstrument(lab.id, params.instrumentId) : null;
   if (!instrument) notFound();
-  return { lab, instrument, today: new Date().toISOString().slice(0, 10) };
+  return { lab, instrument, today: new Date().toISOString().slice(0, 10), precision: await precisionForInstrument(lab.id, instrument.id) };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -85,6 +87,7 @@ export default function InstrumentPage({ loaderData, actionData }: Route.Compone
           </Form>
         </section>
       </div>
+      <PrecisionResults studies={loaderData.precision} />
     </div>
   );
 }

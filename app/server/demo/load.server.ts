@@ -7,6 +7,7 @@ import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "./accounts.ts";
 import { loadDemoLibrary } from "./library.server.ts";
 import { loadDemoStudies } from "./studies.server.ts";
 import { loadDemoProtocols } from "./protocols.server.ts";
+import { loadDemoQuality } from "./quality.server.ts";
 
 export const DEMO_LAB_NAME = "Harrow Vale Edge Lab (invented demo)";
 
@@ -28,6 +29,7 @@ export async function loadDemoData(): Promise<{ created: boolean; labId: string 
     const library = await loadDemoLibrary(tx, lab.id, people["lead@demo.test"]);
     const protocols = await loadDemoProtocols(tx, lab.id, people["lead@demo.test"], library);
     await loadDemoStudies(tx, lab.id, { ownerId: people["owner@demo.test"], leadId: people["lead@demo.test"], testerIds: [people["tester@demo.test"], people["tester2@demo.test"]] }, library, protocols);
+    await loadDemoQuality(tx, lab.id, { leadId: people["lead@demo.test"], testerIds: [people["tester@demo.test"], people["tester2@demo.test"]] }, library, protocols);
     return { created: true, labId: lab.id };
   });
 }

@@ -432,7 +432,8 @@ export async function listStudies(labId: string) {
   const rows = await db()
     .select({ id: studies.id, shortName: studies.shortName, design: studies.design, state: studies.state, updatedAt: studies.updatedAt, randomizedAt: studies.randomizedAt })
     .from(studies)
-    .where(eq(studies.labId, labId))
+    // Reference series and repeatability studies live on the quality page.
+    .where(and(eq(studies.labId, labId), eq(studies.kind, "trial")))
     .orderBy(desc(studies.updatedAt));
   const counts = rows.length
     ? await db().select({ studyId: runs.studyId, n: count() }).from(runs).where(inArray(runs.studyId, rows.map((r) => r.id))).groupBy(runs.studyId)

@@ -90,6 +90,8 @@ export const mediaLots = pgTable(
     lotCode: text("lot_code").notNull(),
     receivedOn: date("received_on", { mode: "string" }).notNull(),
     conditioning: text("conditioning").notNull().default(""),
+    // Reference runs the lot needs before the bench offers it for study runs (null: none required).
+    requiredReferenceRuns: integer("required_reference_runs"),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [uniqueIndex("media_lots_code").on(t.mediumId, t.lotCode)],

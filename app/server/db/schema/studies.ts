@@ -3,6 +3,7 @@ import { boolean, check, doublePrecision, index, integer, jsonb, pgEnum, pgTable
 import { labs, users } from "./accounts.ts";
 import { blades, instruments, mediaLots, storedFiles } from "./library.ts";
 import { protocolVersions } from "./protocols.ts";
+import { studyKind } from "./quality-kind.ts";
 
 export const studyState = pgEnum("study_state", ["draft", "randomized", "running", "closed", "unblinded"]);
 export const studyDesign = pgEnum("study_design", ["parallel", "within_blade"]);
@@ -65,6 +66,8 @@ export const studies = pgTable(
     secondaryOutcomes: jsonb("secondary_outcomes").$type<string[]>().notNull().default([]),
     protocolVersionId: uuid("protocol_version_id").references(() => protocolVersions.id, { onDelete: "restrict" }),
     design: studyDesign("design").notNull().default("parallel"),
+    // "reference": a lab's reference series (no blinding, no arms to compare); "precision": a repeatability study.
+    kind: studyKind("kind").notNull().default("trial"),
     analysisPlan: jsonb("analysis_plan").$type<AnalysisPlan>(),
     randomization: jsonb("randomization").$type<RandomizationSettings>(),
     preparerId: uuid("preparer_id").references(() => users.id, { onDelete: "restrict" }),
