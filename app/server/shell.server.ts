@@ -1,10 +1,11 @@
 import { labsOfUser } from "./accounts.server.ts";
 import { getSessionUser } from "./session.server.ts";
+import type { LabRole } from "./db/schema/accounts.ts";
 
 // What the app shell needs to know about the signed-in person: nothing more.
 export type ShellUser = {
   name: string;
-  currentLab: { id: string; name: string } | null;
+  currentLab: { id: string; name: string; role: LabRole } | null;
   labCount: number;
   isTester: boolean; // a tester in some lab: the shell links to the bench
 };
@@ -14,5 +15,5 @@ export async function getOptionalShellUser(request: Request, labId?: string): Pr
   if (!user) return null;
   const labs = await labsOfUser(user.id);
   const current = labs.find((l) => l.id === labId) ?? (labs.length === 1 ? labs[0] : null);
-  return { name: user.name, currentLab: current ? { id: current.id, name: current.name } : null, labCount: labs.length, isTester: labs.some((l) => l.role === "tester") };
+  return { name: user.name, currentLab: current ? { id: current.id, name: current.name, role: current.role } : null, labCount: labs.length, isTester: labs.some((l) => l.role === "tester") };
 }
