@@ -88,13 +88,13 @@ export function Breadcrumbs({ lab }: { lab: { id: string; name: string; role: st
   const crumbs = breadcrumbs(pathname, lab, leaf?.data);
   if (crumbs.length === 0) return null;
   return (
-    <nav aria-label="Breadcrumb" className="mb-3 text-sm" data-testid="breadcrumbs">
+    <nav aria-label="Breadcrumb" className="-mt-3 mb-2 text-sm" data-testid="breadcrumbs">
       <ol className="flex flex-wrap items-center gap-x-2 text-graphite-600">
         {crumbs.map((c, i) => (
           <li key={`${i}-${c.label}`} className="flex items-center gap-x-2">
             {i > 0 ? <span aria-hidden="true">›</span> : null}
             {c.to ? (
-              <Link to={c.to}>{c.label}</Link>
+              <Link to={c.to} className="inline-flex min-h-target items-center">{c.label}</Link>
             ) : (
               <span aria-current={i === crumbs.length - 1 ? "page" : undefined} className={i === crumbs.length - 1 ? "font-bold text-graphite-950" : undefined}>
                 {c.label}

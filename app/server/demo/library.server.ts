@@ -65,7 +65,7 @@ export async function loadDemoLibrary(tx: Transaction, labId: string, leadId: st
 
   const [tester] = await tx
     .insert(instruments)
-    .values({ labId, name: "Edge-force tester, 0–2000 gf, 1 gf resolution (demo)", kind: "sharpness_tester", testMedium: "Generic test line, 0.2 mm (invented)", resolution: 1, maxReading: 2000, calibrationIntervalDays: 30 })
+    .values({ labId, name: "Edge-force tester 2000 gf (demo)", kind: "sharpness_tester", testMedium: "Generic test line, 0.2 mm; range 0–2000 gf, 1 gf steps (invented)", resolution: 1, maxReading: 2000, calibrationIntervalDays: 30 })
     .returning();
   const [machine] = await tx
     .insert(instruments)
