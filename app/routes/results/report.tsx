@@ -4,6 +4,8 @@ import { ResultsTables } from "~/components/results-tables.tsx";
 import { closedAnalysis, requireStudyForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import { reportDetails } from "~/server/analysis/report.server.ts";
+import { reportCharts } from "~/server/analysis/report-charts.server.ts";
+import { ReportCharts } from "~/components/report-charts.tsx";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Report · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -22,6 +24,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     arms: record.arms.map((a) => ({ label: a.neutralLabel ?? "", name: names?.get(a.neutralLabel ?? "")?.name ?? null, description: names?.get(a.neutralLabel ?? "")?.description ?? null })),
     view: resultsView(analysis, names),
     details: await reportDetails(record),
+    charts: await reportCharts(record),
     generatedAt: new Date().toISOString(),
   };
 }
@@ -93,6 +96,8 @@ export default function Report({ loaderData }: Route.ComponentProps) {
       <Section title="Outcomes and comparisons">
         <ResultsTables view={view} />
       </Section>
+
+      <ReportCharts charts={loaderData.charts} />
 
       <Section title="Deviations">
         {details.deviations.length === 0 ? <p>None recorded.</p> : (
