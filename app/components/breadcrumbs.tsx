@@ -88,7 +88,7 @@ export function Breadcrumbs({ lab }: { lab: { id: string; name: string; role: st
   const crumbs = breadcrumbs(pathname, lab, leaf?.data);
   if (crumbs.length === 0) return null;
   return (
-    <nav aria-label="Breadcrumb" className="-mt-3 mb-2 text-sm" data-testid="breadcrumbs">
+    <nav aria-label="Breadcrumb" className="-mt-3 mb-2 text-sm print:hidden" data-testid="breadcrumbs">
       <ol className="flex flex-wrap items-center gap-x-2 text-graphite-600">
         {crumbs.map((c, i) => (
           <li key={`${i}-${c.label}`} className="flex items-center gap-x-2">
