@@ -21,7 +21,10 @@ export async function renderChartSvg(spec: VisualizationSpec): Promise<string> {
   const compiled = compile(sized).spec;
   const view = new vega.View(vega.parse(compiled), { renderer: "none" });
   try {
-    return await view.toSVG();
+    // The figure around the SVG names and describes the chart: the SVG's own mark roles go,
+    // and the SVG is hidden from assistive technology (its numbers are in the report's tables).
+    const svg = await view.toSVG();
+    return svg.replace(/\s(?:role|aria-[a-z]+)="[^"]*"/g, "").replace(/^<svg/, '<svg aria-hidden="true" focusable="false"');
   } finally {
     view.finalize();
   }
