@@ -1,11 +1,34 @@
-import { Form, Link, NavLink } from "react-router";
+import { useEffect, useRef } from "react";
+import { Form, Link, NavLink, useLocation } from "react-router";
+import { LabNav } from "./lab-nav.tsx";
+import { Breadcrumbs } from "./breadcrumbs.tsx";
 import { NavigationProgress } from "./navigation-progress.tsx";
 import type { ShellUser } from "~/server/shell.server.ts";
 
 const navClass = ({ isActive }: { isActive: boolean }) =>
   `inline-flex min-h-target items-center px-3 font-bold no-underline ${isActive ? "text-graphite-950 underline decoration-2 underline-offset-8" : "text-graphite-600 hover:text-graphite-950"}`;
 
+/**
+ * After a client-side navigation to another page, focus moves to the page's main
+ * heading so a screen reader announces it and the keyboard starts from the top.
+ */
+function useFocusHeadingOnNavigation() {
+  const { pathname } = useLocation();
+  const first = useRef(true);
+  useEffect(() => {
+    if (first.current) {
+      first.current = false;
+      return;
+    }
+    const heading = document.querySelector<HTMLElement>("main h1");
+    if (!heading) return;
+    if (!heading.hasAttribute("tabindex")) heading.setAttribute("tabindex", "-1");
+    heading.focus({ preventScroll: false });
+  }, [pathname]);
+}
+
 export function AppShell({ user, children }: { user: ShellUser | null; children: React.ReactNode }) {
+  useFocusHeadingOnNavigation();
   return (
     <div className="flex min-h-screen flex-col">
       <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:bg-card focus:p-2">
@@ -54,9 +77,11 @@ export function AppShell({ user, children }: { user: ShellUser | null; children:
             )}
           </div>
         </div>
+        {user?.currentLab ? <LabNav lab={user.currentLab} /> : null}
         <NavigationProgress />
       </header>
       <main id="main" className="mx-auto w-full max-w-6xl flex-1 px-4 py-6">
+        {user?.currentLab ? <Breadcrumbs lab={user.currentLab} /> : null}
         {children}
       </main>
       <footer className="border-t border-rule py-4 text-center text-sm text-graphite-600">

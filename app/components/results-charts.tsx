@@ -2,7 +2,7 @@ import { useEffect, useMemo, useState } from "react";
 import type { VisualizationSpec } from "vega-embed";
 import { VegaChart, CHART_COLORS } from "./vega-chart.tsx";
 
-type ChartData = {
+export type ChartData = {
   outcome: { label: string; unit: string; key: string };
   runCurves: { run: string; arm: string; cut: number; aggregate: number }[];
   armCurves: { arm: string; cut: number; mean: number; n: number }[];
@@ -105,7 +105,7 @@ export function ResultsCharts({ url, threshold }: { url: string; threshold: numb
   );
 }
 
-function buildSpecs(d: ChartData, threshold: number | null): Record<"curves" | "intervals" | "effects" | "survival", VisualizationSpec> {
+export function buildSpecs(d: ChartData, threshold: number | null): Record<"curves" | "intervals" | "effects" | "survival", VisualizationSpec> {
   const width = "container" as const;
   const color = { field: "arm", type: "nominal", title: "Arm" } as const;
   return {

@@ -175,7 +175,7 @@ export function validateBlindCode(input: string): BlindCodeCheck {
 }
 
 /**
- * The code as printed and shown: two groups of three characters, e.g. "K7Q-2MX".
+ * The code as printed and shown: two groups of three characters, e.g. "K7Q-2MP".
  *
  * @param code a code in any accepted form
  * @param separator what goes between the groups (default "-")
@@ -250,4 +250,14 @@ export function assignBlindCodes(
   const sorted = bladeIds.slice().sort((a, b) => (a < b ? -1 : a > b ? 1 : 0));
   const codes = generateBlindCodes(sorted.length, seed, existing);
   return sorted.map((bladeId, i) => ({ bladeId, code: codes[i] }));
+}
+
+/**
+ * An example code for pages and docs, built by the product's own check character so it
+ * passes the check and is grouped as printed (e.g. exampleBlindCode("7KQ2M") = "7KQ-2MB").
+ *
+ * @throws Error when the body's check character would be "*" (pick another body)
+ */
+export function exampleBlindCode(body: string): string {
+  return formatBlindCode(body + mod372CheckCharacter(body));
 }

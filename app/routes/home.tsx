@@ -1,5 +1,8 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/home";
+import { exampleBlindCode } from "~/domain/blind-codes.ts";
+
+const EXAMPLE_CODE = exampleBlindCode("7KQ2M");
 
 export const meta: Route.MetaFunction = () => [
   { title: "Blindcut — blinded cut tests of knife edges" },
@@ -26,7 +29,7 @@ export default function Home() {
         </p>
       </section>
       <figure className="rounded-lg border border-rule bg-card p-5" aria-label="An example sharpness reading">
-        <figcaption className="text-sm font-bold tracking-wide text-graphite-600">BLADE 7KQ2M-X · CUT 24 · MIDDLE</figcaption>
+        <figcaption className="text-sm font-bold tracking-wide text-graphite-600">BLADE {EXAMPLE_CODE} · CUT 24 · MIDDLE</figcaption>
         <p className="figures mt-2 text-figure font-bold">
           212 <span className="text-lg font-normal text-graphite-600">gf</span>
         </p>

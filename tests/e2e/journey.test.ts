@@ -149,7 +149,7 @@ describe("three journeys: lead, tester, analyst", () => {
   it("the lead adds six blades (four by the form, two by CSV import), a rope medium with a lot, and a sharpness tester", async () => {
     const { page } = lead;
     await page.goto(url(labPath));
-    await page.getByRole("link", { name: /Library/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Library" }).click();
     await page.waitForURL(/\/blades$/);
     await page.getByRole("link", { name: "Add a blade" }).first().waitFor();
     for (const [i, inv] of FORM_BLADES.entries()) {
@@ -216,7 +216,7 @@ describe("three journeys: lead, tester, analyst", () => {
   it("the lead publishes a short rope protocol: from the rope template, checks every 2 cuts, cap 10", async () => {
     const { page } = lead;
     await page.goto(url(labPath));
-    await page.getByRole("link", { name: /Protocols/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Protocols" }).click();
     await page.waitForURL(/\/protocols$/);
     await page.getByRole("link", { name: "New protocol" }).click();
     await page.waitForURL(/\/protocols\/new$/);
@@ -241,7 +241,7 @@ describe("three journeys: lead, tester, analyst", () => {
   it("the lead designs a parallel study with two arms and enrols the six blades by keyboard drag and drop", async () => {
     const { page } = lead;
     await page.goto(url(labPath));
-    await page.getByRole("link", { name: /^Studies/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Studies" }).click();
     await page.waitForURL(/\/studies$/);
     await page.getByRole("link", { name: "New study" }).click();
     await page.waitForURL(/\/studies\/new$/);
@@ -452,7 +452,7 @@ describe("three journeys: lead, tester, analyst", () => {
     const { page } = analyst;
     await waitForMail(inject("mailDir"), people.analyst.email, /closed/i);
     await page.goto(url(labPath));
-    await page.getByRole("link", { name: /^Results/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Results" }).click();
     await page.waitForURL(/\/results$/);
     await page.getByRole("link", { name: new RegExp(STUDY) }).click();
     await page.waitForURL(/\/results$/);

@@ -99,7 +99,7 @@ describe("layouts", () => {
   it("the results and the report fit a desktop width, and the report an A4 page in print", async () => {
     await page.setViewportSize({ width: 1280, height: 900 });
     await signInAs(page, "analyst@demo.test");
-    await page.getByRole("link", { name: /^Results/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Results" }).click();
     await page.waitForURL(/\/results$/);
     await page.getByRole("link", { name: /Temper trial T-1/ }).click();
     await page.waitForURL(/\/studies\/[0-9a-f-]{36}\/results$/);

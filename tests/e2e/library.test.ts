@@ -19,7 +19,7 @@ describe("the lab's library", () => {
     const page = await browser.newPage();
     const errors = watchConsole(page);
     await signInAs(page, "lead@demo.test");
-    await page.getByRole("link", { name: /Library/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Library" }).click();
     await page.waitForURL(/\/blades$/);
     await screenshot(page, "library-blades");
     await page.getByRole("link", { name: "Add a blade" }).click();

@@ -25,7 +25,7 @@ describe("protocol editor", () => {
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
 
-    await page.getByRole("link", { name: /Protocols/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Protocols" }).click();
     await page.waitForURL(/\/protocols$/);
     // The demo lab's published protocols are listed.
     await page.getByRole("link", { name: "Hand rope test (demo)" }).waitFor();
@@ -94,7 +94,7 @@ describe("protocol editor", () => {
     await page.getByLabel("Password").fill("blindcut-demo");
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
-    await page.getByRole("link", { name: /Protocols/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Protocols" }).click();
     await page.waitForURL(/\/protocols$/);
     await page.getByRole("link", { name: "Hand rope test (demo)" }).waitFor();
     await expect(page.getByText("demo draft").count()).resolves.toBe(0);

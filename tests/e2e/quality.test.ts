@@ -27,7 +27,7 @@ describe("the lab's quality", () => {
     await screenshot(page, "quality-page");
 
     await page.goto(`${inject("baseUrl")}/labs/${labId}/instruments`);
-    await page.getByRole("link", { name: "Edge-force tester A (demo)" }).click();
+    await page.getByRole("link", { name: "Edge-force tester 2000 gf (demo)" }).click();
     await page.getByText(/Repeatability R-1 \(demo\)/).click();
     const result = page.getByTestId("precision-result");
     await result.waitFor({ state: "visible" });

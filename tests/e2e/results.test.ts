@@ -18,7 +18,7 @@ describe("results in the browser", () => {
     const page = await browser.newPage();
     const errors = watchConsole(page);
     await signInAs(page, "analyst@demo.test");
-    await page.getByRole("link", { name: /^Results/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Results" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}\/results$/);
     await page.getByRole("link", { name: /Finish trial F-1/ }).click();
     await page.waitForURL(/\/studies\/[0-9a-f-]{36}\/results$/);

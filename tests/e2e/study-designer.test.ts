@@ -28,7 +28,7 @@ describe("study designer", () => {
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
 
-    await page.getByRole("link", { name: /^Studies/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Studies" }).click();
     await page.waitForURL(/\/studies$/);
     await page.getByRole("link", { name: "New study" }).click();
     await page.waitForURL(/\/studies\/new$/);

@@ -16,7 +16,7 @@ describe("censored study in the browser", () => {
     const page = await browser.newPage();
     const errors = watchConsole(page);
     await signInAs(page, "analyst@demo.test");
-    await page.getByRole("link", { name: /^Results/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Results" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}\/results$/);
     // Temper trial T-1: the demo's finished study with censored runs in one arm.
     await page.getByRole("link", { name: /Temper trial T-1/ }).click();

@@ -47,6 +47,9 @@ describe("blinding crawl over the demo lab", () => {
     const reachedRuns = pages.filter((p) => /\/bench\/runs\/[0-9a-f-]{36}$/.test(p.url) && p.status === 200);
     console.log(`[blinding crawl] tester: ${pages.length} pages and routes crawled, ${reachedRuns.length} run pages, ${secrets.length} identity strings checked`);
     expect(reachedRuns.length).toBeGreaterThan(0);
+    // The lab home (its "your runs" section) is among the crawled pages.
+    const home = pages.find((p) => p.url.endsWith(`/labs/${lab.id}`) && p.status === 200);
+    expect(home?.body).toContain('data-testid="home-my-runs"');
     expect(findLeaks(pages, secrets)).toEqual([]);
   });
 

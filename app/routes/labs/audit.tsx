@@ -1,4 +1,5 @@
 import { Form, Link } from "react-router";
+import { formatDateTime } from "~/lib/dates.ts";
 import { z } from "zod";
 import type { Route } from "./+types/audit";
 import { PageTitle } from "~/components/form.tsx";
@@ -65,7 +66,7 @@ export default function AuditLog({ loaderData }: Route.ComponentProps) {
               {rows.map((r) => (
                 <tr key={r.seq} className="border-b border-rule align-top">
                   <td className="figures py-1 pr-3">{r.seq}</td>
-                  <td className="figures py-1 pr-3">{r.at.slice(0, 19).replace("T", " ")}</td>
+                  <td className="figures py-1 pr-3"><time dateTime={r.at}>{formatDateTime(r.at)}</time></td>
                   <td className="py-1 pr-3 font-bold">{r.action}</td>
                   <td className="py-1 pr-3">{r.actor ?? "system"}</td>
                   <td className="max-w-md break-words py-1 pr-3 font-mono text-xs">{r.details === "{}" ? "" : r.details}</td>

@@ -1,4 +1,5 @@
 import { Form, Link, data, redirect } from "react-router";
+import { formatDateTime } from "~/lib/dates.ts";
 import { z } from "zod";
 import type { Route } from "./+types/protocol";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
@@ -86,7 +87,7 @@ export default function ProtocolPage({ loaderData, actionData }: Route.Component
                 {v.basedOnVersion ? <span className="block text-sm font-normal text-graphite-600">from version {v.basedOnVersion}</span> : null}
               </td>
               <td className="py-2"><StateBadge state={v.state} /></td>
-              <td className="figures py-2">{v.publishedAt ? new Date(v.publishedAt).toISOString().slice(0, 16).replace("T", " ") + " UTC" : "—"}</td>
+              <td className="figures py-2">{v.publishedAt ? formatDateTime(v.publishedAt) : "—"}</td>
               <td className="py-2 font-mono text-sm" title={v.contentHash ?? undefined}>{shortHash(v.contentHash)}</td>
               <td className="flex flex-wrap gap-2 py-2">
                 <Link to={`${base}/versions/${v.version}`} className="inline-flex min-h-target items-center rounded border border-graphite-400 bg-card px-3 font-bold no-underline">

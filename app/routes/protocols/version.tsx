@@ -1,4 +1,5 @@
 import { Link, data, redirect } from "react-router";
+import { formatDateTime } from "~/lib/dates.ts";
 import type { Route } from "./+types/version";
 import { PageTitle } from "~/components/form.tsx";
 import { ProtocolEditor } from "~/components/protocol-editor.tsx";
@@ -125,7 +126,7 @@ export default function VersionPage({ loaderData, actionData }: Route.ComponentP
           {d.contentHash ? (
             <p className="mb-4 rounded border border-rule bg-card p-3">
               <span className="font-bold">Content hash (SHA-256):</span> <code className="break-all" data-testid="content-hash">{d.contentHash}</code>
-              {d.publishedAt ? <span className="block text-sm text-graphite-600">Published {d.publishedAt.slice(0, 16).replace("T", " ")} UTC</span> : null}
+              {d.publishedAt ? <span className="block text-sm text-graphite-600">Published {formatDateTime(d.publishedAt)}</span> : null}
             </p>
           ) : null}
           <ProtocolRecord content={d.content} mediumName={d.mediumName} />

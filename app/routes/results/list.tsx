@@ -1,4 +1,6 @@
 import { Link } from "react-router";
+import { StudyStateBadge } from "~/components/study-state.tsx";
+import { formatDate } from "~/lib/dates.ts";
 import type { Route } from "./+types/list";
 import { PageTitle } from "~/components/form.tsx";
 import { EmptyState } from "~/components/table.tsx";
@@ -27,7 +29,7 @@ export default function ResultsList({ loaderData }: Route.ComponentProps) {
             <li key={s.id}>
               <Link to={`/labs/${lab.id}/studies/${s.id}/results`} className="block rounded-lg border border-rule bg-card p-4 no-underline hover:border-ink">
                 <span className="block text-lg font-bold text-graphite-950">{s.shortName}</span>
-                <span className="text-graphite-600">{s.state === "unblinded" ? "◆ Unblinded" : "■ Closed, blinded"} · closed {s.closedAt}</span>
+                <span className="flex flex-wrap items-center gap-2 text-graphite-600"><StudyStateBadge state={s.state} /> {s.closedAt ? `closed ${formatDate(s.closedAt)}` : null}</span>
               </Link>
             </li>
           ))}

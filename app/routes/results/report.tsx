@@ -8,6 +8,8 @@ import { reportDetails } from "~/server/analysis/report.server.ts";
 import { FlowDiagram, FlowPerArmTable } from "~/components/flow-per-arm.tsx";
 import { reasonCategoryLabel } from "~/domain/reason-categories.ts";
 import { outcomeLabel } from "~/server/analysis/report-words.ts";
+import { reportCharts } from "~/server/analysis/report-charts.server.ts";
+import { ReportCharts } from "~/components/report-charts.tsx";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Report · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -26,6 +28,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     arms: record.arms.map((a) => ({ label: a.neutralLabel ?? "", name: names?.get(a.neutralLabel ?? "")?.name ?? null, description: names?.get(a.neutralLabel ?? "")?.description ?? null })),
     view: resultsView(analysis, names),
     details: await reportDetails(record),
+    charts: await reportCharts(record),
     generatedAt: new Date().toISOString(),
   };
 }
@@ -126,6 +129,8 @@ export default function Report({ loaderData }: Route.ComponentProps) {
         <ResultsTables view={view} />
         <SecondaryOutcomes sections={view.secondary} />
       </Section>
+
+      <ReportCharts charts={loaderData.charts} />
 
       <Section title="Deviations">
         {details.deviations.length === 0 ? <p>None recorded.</p> : (

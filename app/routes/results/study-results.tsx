@@ -1,4 +1,6 @@
 import { Form, Link } from "react-router";
+import { StudyStateBadge } from "~/components/study-state.tsx";
+import { formatDateTime } from "~/lib/dates.ts";
 import { studyLifecycleAction } from "~/server/analysis/lifecycle-action.server.ts";
 import type { Route } from "./+types/study-results";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
@@ -35,7 +37,6 @@ export function action({ request, params }: Route.ActionArgs) {
   return studyLifecycleAction(request, params, "close", (form) => form.get("intent") === "close", "Unknown action");
 }
 
-const STATE_LABELS = { draft: "□ Draft", randomized: "◇ Randomized", running: "▶ Running", closed: "■ Closed, blinded", unblinded: "◆ Unblinded" } as const;
 
 export default function StudyResults({ loaderData, actionData }: Route.ComponentProps) {
   const { lab, study, role, view } = loaderData;
@@ -44,7 +45,7 @@ export default function StudyResults({ loaderData, actionData }: Route.Component
   return (
     <div>
       <PageTitle lead={study.question}>
-        Results: {study.shortName} <span className="ml-2 align-middle text-base font-bold text-graphite-600" data-testid="study-state">{STATE_LABELS[study.state]}</span>
+        Results: {study.shortName} <span className="ml-2 align-middle text-base" data-testid="study-state"><StudyStateBadge state={study.state} /></span>
       </PageTitle>
       <FormAlert message={actionData?.error} />
       {!loaderData.closed ? (
@@ -78,8 +79,8 @@ export default function StudyResults({ loaderData, actionData }: Route.Component
               </p>
             ) : (
               <p data-testid="unblinded-note">
-                <strong>Unblinded</strong> on {new Date(study.unblindedAt!).toLocaleString("en-GB", { timeZone: "UTC" })} UTC. The analysis was done blind: it was taken when the study closed on{" "}
-                {new Date(study.closedAt!).toLocaleString("en-GB", { timeZone: "UTC" })} UTC, before anyone saw the arm names, and is unchanged since (snapshot hash <code className="break-all text-xs">{study.snapshotHash}</code>).
+                <strong>Unblinded</strong> on {formatDateTime(study.unblindedAt!)}. The analysis was done blind: it was taken when the study closed on{" "}
+                {formatDateTime(study.closedAt!)}, before anyone saw the arm names, and is unchanged since (snapshot hash <code className="break-all text-xs">{study.snapshotHash}</code>).
               </p>
             )}
           </section>

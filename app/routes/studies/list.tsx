@@ -1,4 +1,5 @@
 import { Link } from "react-router";
+import { formatDate } from "~/lib/dates.ts";
 import type { Route } from "./+types/list";
 import { PageTitle } from "~/components/form.tsx";
 import { EmptyState } from "~/components/table.tsx";
@@ -58,7 +59,7 @@ export default function StudyList({ loaderData }: Route.ComponentProps) {
                 </td>
                 <td className="py-2 pr-3">{DESIGN_LABELS[s.design].title}</td>
                 <td className="figures py-2 pr-3 text-right">{s.runs}</td>
-                <td className="figures py-2">{new Date(s.updatedAt).toISOString().slice(0, 10)}</td>
+                <td className="figures py-2">{formatDate(s.updatedAt)}</td>
               </tr>
             ))}
           </tbody>

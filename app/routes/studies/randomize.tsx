@@ -1,4 +1,5 @@
 import { Form, Link, data, redirect } from "react-router";
+import { formatDateTime } from "~/lib/dates.ts";
 import { studyOfLab } from "~/server/analysis/access.server.ts";
 import type { Route } from "./+types/randomize";
 import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
@@ -220,7 +221,7 @@ export default function Randomize({ loaderData, actionData }: Route.ComponentPro
               <ol className="figures list-decimal pl-6">
                 {d.rolls.map((r, i) => (
                   <li key={i}>
-                    {r.at.slice(0, 16).replace("T", " ")} UTC — seed “{r.seed}”, schedule {shortHash(r.scheduleHash)}
+                    {formatDateTime(r.at)} — seed “{r.seed}”, schedule {shortHash(r.scheduleHash)}
                     {r.by ? `, by ${r.by}` : ""}
                   </li>
                 ))}

@@ -14,6 +14,7 @@ import { stopRuleInWords, stepInWords, toForceProtocol, type ProtocolContent } f
 import { decideBenchRun, type BenchProtocol, type BenchReading, type RunDecision } from "~/domain/bench/run-progress.ts";
 import type { ReadingRange } from "~/domain/outcomes.ts";
 import type { RunState } from "../db/schema/studies.ts";
+import { STATE_LOOKS } from "~/lib/states.ts";
 
 export type RunChecklist = {
   /** The attempt whose sharpening (or hand-over) was last confirmed. */
@@ -21,13 +22,8 @@ export type RunChecklist = {
   attempts: { attempt: number; at: string; sharpening?: number[]; handOver?: boolean; safety?: number[]; blindCode?: string }[];
 };
 
-export const RUN_STATE_WORDS: Record<RunState, string> = {
-  waiting: "Waiting",
-  in_progress: "In progress",
-  ended_threshold: "Ended",
-  censored: "Censored at the cap",
-  withdrawn: "Withdrawn",
-};
+// The words are the shared state words (app/lib/states.ts).
+export const RUN_STATE_WORDS = Object.fromEntries(Object.entries(STATE_LOOKS.run).map(([k, v]) => [k, v.word])) as Record<RunState, string>;
 
 /**
  * Access to a run at the bench. Testers reach only their own runs (another tester's

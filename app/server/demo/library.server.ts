@@ -35,7 +35,7 @@ export async function loadDemoLibrary(tx: Transaction, labId: string, leadId: st
         steel: s.steel,
         hardnessHrc: readings(s.hrc),
         heatTreatment: s.ht,
-        source: "Harrow Vale forge shop, batch 7 (invented)",
+        source: "Demo forge batch 7 (invented)",
         bladeLengthMm: 180,
         edgeLengthMm: 150,
         edgeThicknessMm: Math.round((0.42 + random() * 0.06) * 100) / 100,
@@ -65,7 +65,7 @@ export async function loadDemoLibrary(tx: Transaction, labId: string, leadId: st
 
   const [tester] = await tx
     .insert(instruments)
-    .values({ labId, name: "Edge-force tester A (demo)", kind: "sharpness_tester", testMedium: "Monofilament test line, 0.2 mm (invented)", resolution: 1, maxReading: 2000, calibrationIntervalDays: 30 })
+    .values({ labId, name: "Edge-force tester 2000 gf (demo)", kind: "sharpness_tester", testMedium: "Generic test line, 0.2 mm; range 0–2000 gf, 1 gf steps (invented)", resolution: 1, maxReading: 2000, calibrationIntervalDays: 30 })
     .returning();
   const [machine] = await tx
     .insert(instruments)

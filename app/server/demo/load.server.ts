@@ -1,6 +1,7 @@
 import { eq } from "drizzle-orm";
 import { db } from "../db.server.ts";
-import { labs, memberships, users } from "../db/schema/index.ts";
+import { invitations, labs, memberships, users } from "../db/schema/index.ts";
+import { randomToken, tokenHash } from "../tokens.server.ts";
 import { recordAudit } from "../audit.server.ts";
 import { hashPassword } from "../password.server.ts";
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "./accounts.ts";
@@ -9,7 +10,7 @@ import { loadDemoStudies } from "./studies.server.ts";
 import { loadDemoProtocols } from "./protocols.server.ts";
 import { loadDemoQuality } from "./quality.server.ts";
 
-export const DEMO_LAB_NAME = "Harrow Vale Edge Lab (invented demo)";
+export const DEMO_LAB_NAME = "Demo Edge Lab (invented)";
 
 /** Creates the invented demo lab once; every part of it is generated and labelled as invented. */
 export async function loadDemoData(): Promise<{ created: boolean; labId: string }> {
@@ -26,6 +27,12 @@ export async function loadDemoData(): Promise<{ created: boolean; labId: string 
       await tx.insert(memberships).values({ labId: lab.id, userId: user.id, role: account.role });
       await recordAudit(tx, { labId: lab.id, actorId: null, action: "member.joined", objectType: "user", objectId: user.id, details: { role: account.role, demo: true } });
     }
+    // A pending invitation for the lab home's list. Its token is thrown away: nobody can accept it.
+    const [invite] = await tx
+      .insert(invitations)
+      .values({ labId: lab.id, email: "new-tester@demo.test", role: "tester", tokenHash: tokenHash(randomToken()), invitedBy: people["owner@demo.test"], expiresAt: new Date(Date.now() + 14 * 86_400_000) })
+      .returning();
+    await recordAudit(tx, { labId: lab.id, actorId: people["owner@demo.test"], action: "member.invited", objectType: "invitation", objectId: invite.id, details: { email: invite.email, role: "tester", demo: true } });
     const library = await loadDemoLibrary(tx, lab.id, people["lead@demo.test"]);
     const protocols = await loadDemoProtocols(tx, lab.id, people["lead@demo.test"], library);
     await loadDemoStudies(tx, lab.id, { ownerId: people["owner@demo.test"], leadId: people["lead@demo.test"], testerIds: [people["tester@demo.test"], people["tester2@demo.test"]] }, library, protocols);
