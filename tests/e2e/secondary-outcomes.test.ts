@@ -15,7 +15,7 @@ describe("16.4 and 16.5 in the demo", () => {
     const page = await browser.newPage();
     const errors = watchConsole(page);
     await signInAs(page, "analyst@demo.test");
-    await page.getByRole("link", { name: /^Results/ }).click();
+    await page.getByRole("navigation", { name: "Lab" }).getByRole("link", { name: "Results" }).click();
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}\/results$/);
     await page.getByRole("link", { name: /Temper trial T-1/ }).click();
     await page.waitForURL(/\/studies\/[0-9a-f-]{36}\/results$/);

@@ -125,6 +125,7 @@ describe("a taken port gives one line naming the service, the port and its varia
     const port = await holdPort("127.0.0.1");
     const r = await run(["scripts/server.mjs"], {
       NODE_ENV: "production",
+      APP_URL: "http://127.0.0.1",
       PORT: String(port),
       HOST: "127.0.0.1",
       DATABASE_URL: "postgres://postgres@127.0.0.1:1/none",
