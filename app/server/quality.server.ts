@@ -1,4 +1,4 @@
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
 import { db, type Transaction } from "./db.server.ts";
 import { blades, instruments, mediaLots, precisionReadings, precisionStudies, protocols, protocolVersions, referenceBlades, runs, studies, studyArms, studyBlades } from "./db/schema/index.ts";
 import { recordAudit } from "./audit.server.ts";
@@ -81,7 +81,9 @@ export type ReferencePoint = {
   runId: string;
   at: string;
   lot: string;
+  lotId: string | null;
   instrument: string;
+  instrumentId: string | null;
   tester: string;
   cutsToThreshold: number | null;
   baseline: number | null;
@@ -128,6 +130,8 @@ export async function qualityOverview(labId: string) {
           runId: r.id,
           at: (r.endedAt ?? r.updatedAt).toISOString(),
           lot: r.mediaLotId ? lotName.get(r.mediaLotId) ?? "?" : "not recorded",
+          lotId: r.mediaLotId ?? null,
+          instrumentId: r.instrumentId ?? null,
           instrument: r.instrumentId ? instName.get(r.instrumentId) ?? "?" : "not recorded",
           tester: people.get(r.testerId) ?? "?",
           cutsToThreshold: res?.force?.cutsToThreshold ?? null,
@@ -224,4 +228,42 @@ export async function latestQualitySignals(labId: string) {
     }
   }
   return out;
+}
+
+export type QualityNotice = { lot: string; instrument: string; rule: string; outcome: string; at: string; matchedBy: ("lot" | "instrument")[]; runsAfter: number };
+
+/**
+ * Reference-chart signals that touch a study: a signal on a media lot or instrument this study's
+ * runs used at or after the signal's reference run. Only lot, instrument, rule and date are named,
+ * never an arm or blade, so the notice keeps blinding on the progress and results pages.
+ */
+export async function qualityNoticesForStudy(labId: string, studyId: string): Promise<QualityNotice[]> {
+  const [study] = await db().select({ kind: studies.kind }).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
+  if (!study || study.kind !== "trial") return [];
+  const studyRuns = await db()
+    .select({ mediaLotId: runs.mediaLotId, instrumentId: runs.instrumentId, startedAt: runs.startedAt })
+    .from(runs)
+    .where(and(eq(runs.studyId, studyId), eq(runs.labId, labId), isNotNull(runs.startedAt)));
+  if (!studyRuns.length) return [];
+  const notices: QualityNotice[] = [];
+  const seen = new Set<string>();
+  for (const ref of await qualityOverview(labId)) {
+    for (const chart of ref.charts) {
+      for (const signal of [...chart.individuals.signals, ...(chart.ewma?.signals ?? [])]) {
+        const p = chart.points[signal.index];
+        if (!p) continue;
+        const at = new Date(p.at).getTime();
+        const after = studyRuns.filter((r) => r.startedAt!.getTime() >= at);
+        const onLot = after.filter((r) => p.lotId && r.mediaLotId === p.lotId);
+        const onInstrument = after.filter((r) => p.instrumentId && r.instrumentId === p.instrumentId);
+        if (!onLot.length && !onInstrument.length) continue;
+        const key = `${p.runId}/${signal.rule}`;
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const matchedBy = [...(onLot.length ? (["lot"] as const) : []), ...(onInstrument.length ? (["instrument"] as const) : [])];
+        notices.push({ lot: p.lot, instrument: p.instrument, rule: SIGNAL_RULES[signal.rule].name, outcome: chart.label, at: p.at, matchedBy, runsAfter: new Set([...onLot, ...onInstrument]).size });
+      }
+    }
+  }
+  return notices.sort((a, b) => a.at.localeCompare(b.at));
 }
