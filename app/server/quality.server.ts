@@ -1,6 +1,7 @@
 import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
 import { db, type Transaction } from "./db.server.ts";
-import { blades, instruments, mediaLots, precisionReadings, precisionStudies, protocols, protocolVersions, referenceBlades, runs, studies, studyArms, studyBlades } from "./db/schema/index.ts";
+import { blades, instruments, mediaLots, precisionReadings, precisionStudies, protocols, protocolVersions, readings, referenceBlades, runs, studies, studyArms, studyBlades, users } from "./db/schema/index.ts";
+import { toCsv } from "~/lib/csv.ts";
 import { recordAudit } from "./audit.server.ts";
 import { analysisInput, loadStudyRecord } from "./analysis/study-data.server.ts";
 import { runResults } from "~/domain/study-analysis.ts";
@@ -266,4 +267,67 @@ export async function qualityNoticesForStudy(labId: string, studyId: string): Pr
     }
   }
   return notices.sort((a, b) => a.at.localeCompare(b.at));
+}
+
+/**
+ * Every reading of every reference run of the lab in long form, corrections kept with what they
+ * supersede. Analysts get the reference's blind code only (no inventory number), as on the quality page.
+ */
+export async function referenceReadingsCsv(labId: string, options: { withInventory: boolean }) {
+  const rows = await db()
+    .select({
+      code: studyBlades.blindCode,
+      inventory: blades.inventoryNumber,
+      run: runs.bladeRunNumber,
+      runState: runs.state,
+      lot: mediaLots.lotCode,
+      instrument: instruments.name,
+      tester: users.name,
+      roomTempC: runs.roomTempC,
+      humidityPct: runs.humidityPct,
+      attempt: readings.attempt,
+      cut: readings.cut,
+      position: readings.position,
+      kind: readings.kind,
+      value: readings.value,
+      id: readings.id,
+      supersedesId: readings.supersedesId,
+      reason: readings.reason,
+      enteredAt: readings.enteredAt,
+    })
+    .from(readings)
+    .innerJoin(runs, eq(runs.id, readings.runId))
+    .innerJoin(referenceBlades, eq(referenceBlades.seriesStudyId, runs.studyId))
+    .innerJoin(blades, eq(blades.id, referenceBlades.bladeId))
+    .innerJoin(studyBlades, eq(studyBlades.id, runs.studyBladeId))
+    .leftJoin(mediaLots, eq(mediaLots.id, runs.mediaLotId))
+    .leftJoin(instruments, eq(instruments.id, runs.instrumentId))
+    .leftJoin(users, eq(users.id, runs.testerId))
+    .where(and(eq(readings.labId, labId), eq(referenceBlades.labId, labId)))
+    .orderBy(asc(blades.inventoryNumber), asc(runs.bladeRunNumber), asc(readings.enteredAt));
+  return toCsv(
+    ["reference_code", "reference_inventory", "reference_run", "run_state", "media_lot", "instrument", "tester", "room_temp_c", "humidity_pct", "attempt", "cut", "position", "kind", "value", "reading_id", "supersedes", "reason", "entered_at"],
+    rows.map((r) => [r.code ? formatBlindCode(r.code) : "", options.withInventory ? r.inventory : "", r.run, r.runState, r.lot, r.instrument, r.tester, r.roomTempC, r.humidityPct, r.attempt, r.cut, r.position, r.kind, r.value, r.id, r.supersedesId, r.reason, r.enteredAt.toISOString()]),
+  );
+}
+
+/**
+ * The readings of every repeatability study on one instrument (gf), or null for an instrument of another lab.
+ * Edges are named by inventory number for owners and leads, by their place in the study ("edge 2") for analysts.
+ */
+export async function precisionReadingsCsv(labId: string, instrumentId: string, options: { withInventory: boolean }) {
+  const [inst] = await db().select({ id: instruments.id }).from(instruments).where(and(eq(instruments.id, instrumentId), eq(instruments.labId, labId)));
+  if (!inst) return null;
+  const rows = await db()
+    .select({ study: precisionStudies.name, seed: precisionStudies.seed, edges: precisionStudies.edgeBladeIds, bladeId: precisionReadings.bladeId, tester: users.name, blade: blades.inventoryNumber, repeat: precisionReadings.repeat, valueGf: precisionReadings.valueGf, id: precisionReadings.id, hash: precisionReadings.contentHash, enteredAt: precisionReadings.enteredAt })
+    .from(precisionReadings)
+    .innerJoin(precisionStudies, eq(precisionStudies.id, precisionReadings.studyId))
+    .innerJoin(users, eq(users.id, precisionReadings.testerId))
+    .innerJoin(blades, eq(blades.id, precisionReadings.bladeId))
+    .where(and(eq(precisionReadings.labId, labId), eq(precisionStudies.instrumentId, inst.id)))
+    .orderBy(asc(precisionStudies.createdAt), asc(precisionReadings.enteredAt));
+  return toCsv(
+    ["study", "seed", "tester", "edge", "repeat", "value_gf", "reading_id", "content_hash", "entered_at"],
+    rows.map((r) => [r.study, r.seed, r.tester, options.withInventory ? r.blade : `edge ${r.edges.indexOf(r.bladeId) + 1}`, r.repeat, r.valueGf, r.id, r.hash, r.enteredAt.toISOString()]),
+  );
 }
