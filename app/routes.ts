@@ -21,6 +21,7 @@ export default [
     route(":labId/invitations", "routes/labs/invitations.tsx"),
     route(":labId/audit", "routes/labs/audit.tsx"),
     route(":labId/quality", "routes/quality/quality.tsx"), // quality (owners, leads, analysts)
+    route(":labId/quality/reference-readings.csv", "routes/api/reference-readings-csv.ts"),
     // protocols
     route(":labId/protocols", "routes/protocols/list.tsx"),
     route(":labId/protocols/new", "routes/protocols/new.tsx"),
@@ -50,6 +51,7 @@ export default [
     route(":labId/media/:mediumId", "routes/library/medium.tsx"),
     route(":labId/instruments", "routes/library/instruments.tsx"),
     route(":labId/instruments/:instrumentId", "routes/library/instrument.tsx"),
+    route(":labId/instruments/:instrumentId/repeatability-readings.csv", "routes/api/precision-readings-csv.ts"), // owners, leads, analysts
     route(":labId/uploads", "routes/api/uploads.ts"),
     route(":labId/files/:fileId", "routes/api/file.ts"),
     // bench

@@ -117,10 +117,19 @@ export const MediumInput = z.object({
   notes: text("Notes", 1000),
 });
 
+// Reference runs a lot needs before the bench accepts it for study runs; blank or 0: none.
+const requiredReferenceRuns = optionalNumber("Required reference runs", 0, 50, "runs").refine((n) => n === undefined || Number.isInteger(n), "Required reference runs must be a whole number of runs");
+
 export const LotInput = z.object({
   lotCode: z.string().trim().min(1, "Enter the lot code").max(40, "At most 40 characters"),
   receivedOn: isoDate,
   conditioning: text("Conditioning notes", 500),
+  requiredReferenceRuns,
+});
+
+export const LotAcceptanceInput = z.object({
+  lotId: z.string().uuid("Choose a lot"),
+  requiredReferenceRuns,
 });
 
 export const InstrumentInput = z.object({

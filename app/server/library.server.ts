@@ -3,7 +3,7 @@ import Papa from "papaparse";
 import { db } from "./db.server.ts";
 import { blades, calibrationChecks, custodyEvents, instruments, media, mediaLots, storedFiles, type Blade } from "./db/schema/index.ts";
 import { recordAudit } from "./audit.server.ts";
-import { BladeInput, CalibrationInput, CustodyInput, InstrumentInput, LotInput, MediumInput } from "~/lib/library-input.ts";
+import { BladeInput, CalibrationInput, CustodyInput, InstrumentInput, LotAcceptanceInput, LotInput, MediumInput } from "~/lib/library-input.ts";
 import type { TableQuery } from "~/lib/table-query.ts";
 import { likePattern } from "~/lib/table-query.ts";
 import { calibrationPassed, calibrationStatus, type CalibrationStatus } from "~/domain/calibration.ts";
@@ -293,7 +293,19 @@ export async function createMedium(labId: string, actorId: string, input: z.infe
 export async function getMedium(labId: string, mediumId: string) {
   const [row] = await db().select().from(media).where(and(eq(media.id, mediumId), eq(media.labId, labId)));
   if (!row) return null;
-  const lots = await db().select().from(mediaLots).where(eq(mediaLots.mediumId, mediumId)).orderBy(desc(mediaLots.receivedOn));
+  const lots = await db()
+    .select({
+      id: mediaLots.id,
+      lotCode: mediaLots.lotCode,
+      receivedOn: mediaLots.receivedOn,
+      conditioning: mediaLots.conditioning,
+      requiredReferenceRuns: mediaLots.requiredReferenceRuns,
+      // Reference runs ended on the lot, against which the bench checks the lot's acceptance.
+      referenceRunsEnded: sql<number>`(SELECT count(*)::int FROM runs r JOIN studies s ON s.id = r.study_id WHERE r.media_lot_id = media_lots.id AND s.kind = 'reference' AND r.state IN ('ended_threshold', 'censored'))`,
+    })
+    .from(mediaLots)
+    .where(eq(mediaLots.mediumId, mediumId))
+    .orderBy(desc(mediaLots.receivedOn));
   return { ...row, lots };
 }
 
@@ -302,14 +314,30 @@ export async function createLot(labId: string, actorId: string, mediumId: string
     return await db().transaction(async (tx) => {
       const [medium] = await tx.select({ id: media.id }).from(media).where(and(eq(media.id, mediumId), eq(media.labId, labId)));
       if (!medium) throw new LibraryError("No such medium in this lab", undefined, 404);
-      const [row] = await tx.insert(mediaLots).values({ labId, mediumId, ...input }).returning();
-      await recordAudit(tx, { labId, actorId, action: "medium.lot_added", objectType: "medium", objectId: mediumId, details: { lotCode: input.lotCode } });
+      const required = input.requiredReferenceRuns ? input.requiredReferenceRuns : null;
+      const [row] = await tx.insert(mediaLots).values({ labId, mediumId, lotCode: input.lotCode, receivedOn: input.receivedOn, conditioning: input.conditioning, requiredReferenceRuns: required }).returning();
+      await recordAudit(tx, { labId, actorId, action: "medium.lot_added", objectType: "medium", objectId: mediumId, details: { lotCode: input.lotCode, requiredReferenceRuns: required } });
       return row;
     });
   } catch (error) {
     if (isUniqueViolation(error)) throw new LibraryError(`Lot ${input.lotCode} is already recorded for this medium`, "lotCode");
     throw error;
   }
+}
+
+/** Sets how many ended reference runs a lot needs before the bench accepts it for study runs (0 or blank: none). */
+export async function setLotAcceptance(labId: string, actorId: string, mediumId: string, input: z.infer<typeof LotAcceptanceInput>) {
+  return db().transaction(async (tx) => {
+    const required = input.requiredReferenceRuns ? input.requiredReferenceRuns : null;
+    const [row] = await tx
+      .update(mediaLots)
+      .set({ requiredReferenceRuns: required })
+      .where(and(eq(mediaLots.id, input.lotId), eq(mediaLots.mediumId, mediumId), eq(mediaLots.labId, labId)))
+      .returning();
+    if (!row) throw new LibraryError("No such lot of this medium", "lotId", 404);
+    await recordAudit(tx, { labId, actorId, action: "medium.lot_acceptance_set", objectType: "medium", objectId: mediumId, details: { lotId: row.id, lotCode: row.lotCode, requiredReferenceRuns: required } });
+    return row;
+  });
 }
 
 // ---------- Instruments and calibration ----------

@@ -1,6 +1,7 @@
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
 import { db, type Transaction } from "./db.server.ts";
-import { blades, instruments, mediaLots, precisionReadings, precisionStudies, protocols, protocolVersions, referenceBlades, runs, studies, studyArms, studyBlades } from "./db/schema/index.ts";
+import { blades, instruments, mediaLots, precisionReadings, precisionStudies, protocols, protocolVersions, readings, referenceBlades, runs, studies, studyArms, studyBlades, users } from "./db/schema/index.ts";
+import { toCsv } from "~/lib/csv.ts";
 import { recordAudit } from "./audit.server.ts";
 import { analysisInput, loadStudyRecord } from "./analysis/study-data.server.ts";
 import { runResults } from "~/domain/study-analysis.ts";
@@ -81,7 +82,9 @@ export type ReferencePoint = {
   runId: string;
   at: string;
   lot: string;
+  lotId: string | null;
   instrument: string;
+  instrumentId: string | null;
   tester: string;
   cutsToThreshold: number | null;
   baseline: number | null;
@@ -128,6 +131,8 @@ export async function qualityOverview(labId: string) {
           runId: r.id,
           at: (r.endedAt ?? r.updatedAt).toISOString(),
           lot: r.mediaLotId ? lotName.get(r.mediaLotId) ?? "?" : "not recorded",
+          lotId: r.mediaLotId ?? null,
+          instrumentId: r.instrumentId ?? null,
           instrument: r.instrumentId ? instName.get(r.instrumentId) ?? "?" : "not recorded",
           tester: people.get(r.testerId) ?? "?",
           cutsToThreshold: res?.force?.cutsToThreshold ?? null,
@@ -224,4 +229,105 @@ export async function latestQualitySignals(labId: string) {
     }
   }
   return out;
+}
+
+export type QualityNotice = { lot: string; instrument: string; rule: string; outcome: string; at: string; matchedBy: ("lot" | "instrument")[]; runsAfter: number };
+
+/**
+ * Reference-chart signals that touch a study: a signal on a media lot or instrument this study's
+ * runs used at or after the signal's reference run. Only lot, instrument, rule and date are named,
+ * never an arm or blade, so the notice keeps blinding on the progress and results pages.
+ */
+export async function qualityNoticesForStudy(labId: string, studyId: string): Promise<QualityNotice[]> {
+  const [study] = await db().select({ kind: studies.kind }).from(studies).where(and(eq(studies.id, studyId), eq(studies.labId, labId)));
+  if (!study || study.kind !== "trial") return [];
+  const studyRuns = await db()
+    .select({ mediaLotId: runs.mediaLotId, instrumentId: runs.instrumentId, startedAt: runs.startedAt })
+    .from(runs)
+    .where(and(eq(runs.studyId, studyId), eq(runs.labId, labId), isNotNull(runs.startedAt)));
+  if (!studyRuns.length) return [];
+  const notices: QualityNotice[] = [];
+  const seen = new Set<string>();
+  for (const ref of await qualityOverview(labId)) {
+    for (const chart of ref.charts) {
+      for (const signal of [...chart.individuals.signals, ...(chart.ewma?.signals ?? [])]) {
+        const p = chart.points[signal.index];
+        if (!p) continue;
+        const at = new Date(p.at).getTime();
+        const after = studyRuns.filter((r) => r.startedAt!.getTime() >= at);
+        const onLot = after.filter((r) => p.lotId && r.mediaLotId === p.lotId);
+        const onInstrument = after.filter((r) => p.instrumentId && r.instrumentId === p.instrumentId);
+        if (!onLot.length && !onInstrument.length) continue;
+        const key = `${p.runId}/${signal.rule}`;
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const matchedBy = [...(onLot.length ? (["lot"] as const) : []), ...(onInstrument.length ? (["instrument"] as const) : [])];
+        notices.push({ lot: p.lot, instrument: p.instrument, rule: SIGNAL_RULES[signal.rule].name, outcome: chart.label, at: p.at, matchedBy, runsAfter: new Set([...onLot, ...onInstrument]).size });
+      }
+    }
+  }
+  return notices.sort((a, b) => a.at.localeCompare(b.at));
+}
+
+/**
+ * Every reading of every reference run of the lab in long form, corrections kept with what they
+ * supersede. Analysts get the reference's blind code only (no inventory number), as on the quality page.
+ */
+export async function referenceReadingsCsv(labId: string, options: { withInventory: boolean }) {
+  const rows = await db()
+    .select({
+      code: studyBlades.blindCode,
+      inventory: blades.inventoryNumber,
+      run: runs.bladeRunNumber,
+      runState: runs.state,
+      lot: mediaLots.lotCode,
+      instrument: instruments.name,
+      tester: users.name,
+      roomTempC: runs.roomTempC,
+      humidityPct: runs.humidityPct,
+      attempt: readings.attempt,
+      cut: readings.cut,
+      position: readings.position,
+      kind: readings.kind,
+      value: readings.value,
+      id: readings.id,
+      supersedesId: readings.supersedesId,
+      reason: readings.reason,
+      enteredAt: readings.enteredAt,
+    })
+    .from(readings)
+    .innerJoin(runs, eq(runs.id, readings.runId))
+    .innerJoin(referenceBlades, eq(referenceBlades.seriesStudyId, runs.studyId))
+    .innerJoin(blades, eq(blades.id, referenceBlades.bladeId))
+    .innerJoin(studyBlades, eq(studyBlades.id, runs.studyBladeId))
+    .leftJoin(mediaLots, eq(mediaLots.id, runs.mediaLotId))
+    .leftJoin(instruments, eq(instruments.id, runs.instrumentId))
+    .leftJoin(users, eq(users.id, runs.testerId))
+    .where(and(eq(readings.labId, labId), eq(referenceBlades.labId, labId)))
+    .orderBy(asc(blades.inventoryNumber), asc(runs.bladeRunNumber), asc(readings.enteredAt));
+  return toCsv(
+    ["reference_code", "reference_inventory", "reference_run", "run_state", "media_lot", "instrument", "tester", "room_temp_c", "humidity_pct", "attempt", "cut", "position", "kind", "value", "reading_id", "supersedes", "reason", "entered_at"],
+    rows.map((r) => [r.code ? formatBlindCode(r.code) : "", options.withInventory ? r.inventory : "", r.run, r.runState, r.lot, r.instrument, r.tester, r.roomTempC, r.humidityPct, r.attempt, r.cut, r.position, r.kind, r.value, r.id, r.supersedesId, r.reason, r.enteredAt.toISOString()]),
+  );
+}
+
+/**
+ * The readings of every repeatability study on one instrument (gf), or null for an instrument of another lab.
+ * Edges are named by inventory number for owners and leads, by their place in the study ("edge 2") for analysts.
+ */
+export async function precisionReadingsCsv(labId: string, instrumentId: string, options: { withInventory: boolean }) {
+  const [inst] = await db().select({ id: instruments.id }).from(instruments).where(and(eq(instruments.id, instrumentId), eq(instruments.labId, labId)));
+  if (!inst) return null;
+  const rows = await db()
+    .select({ study: precisionStudies.name, seed: precisionStudies.seed, edges: precisionStudies.edgeBladeIds, bladeId: precisionReadings.bladeId, tester: users.name, blade: blades.inventoryNumber, repeat: precisionReadings.repeat, valueGf: precisionReadings.valueGf, id: precisionReadings.id, hash: precisionReadings.contentHash, enteredAt: precisionReadings.enteredAt })
+    .from(precisionReadings)
+    .innerJoin(precisionStudies, eq(precisionStudies.id, precisionReadings.studyId))
+    .innerJoin(users, eq(users.id, precisionReadings.testerId))
+    .innerJoin(blades, eq(blades.id, precisionReadings.bladeId))
+    .where(and(eq(precisionReadings.labId, labId), eq(precisionStudies.instrumentId, inst.id)))
+    .orderBy(asc(precisionStudies.createdAt), asc(precisionReadings.enteredAt));
+  return toCsv(
+    ["study", "seed", "tester", "edge", "repeat", "value_gf", "reading_id", "content_hash", "entered_at"],
+    rows.map((r) => [r.study, r.seed, r.tester, options.withInventory ? r.blade : `edge ${r.edges.indexOf(r.bladeId) + 1}`, r.repeat, r.valueGf, r.id, r.hash, r.enteredAt.toISOString()]),
+  );
 }

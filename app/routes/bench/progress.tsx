@@ -9,6 +9,8 @@ import { reassignRuns, ReassignInput, studyOfLab, studyProgress, studyTesterChoi
 import { parseForm } from "~/lib/forms.ts";
 import { readFormData } from "~/server/form-data.server.ts";
 import { ReasonCategorySelect } from "~/components/reason-category-select.tsx";
+import { QualityNotices } from "~/components/quality/quality-notices.tsx";
+import { qualityNoticesForStudy } from "~/server/quality.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Progress · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -16,8 +18,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { lab, role } = await requireLabRole(request, params.labId, MANAGERS);
   const study = isUuid(params.studyId) ? await studyOfLab(lab.id, params.studyId) : null;
   if (!study) notFound();
-  const [progress, testers] = await Promise.all([studyProgress(lab.id, study.id), studyTesterChoices(lab.id, study.id)]);
-  return { labId: lab.id, role, study: { id: study.id, shortName: study.shortName, state: study.state, hasPreparer: !!study.preparerId }, progress, testers };
+  const [progress, testers, qualityNotices] = await Promise.all([studyProgress(lab.id, study.id), studyTesterChoices(lab.id, study.id), qualityNoticesForStudy(lab.id, study.id)]);
+  return { labId: lab.id, role, study: { id: study.id, shortName: study.shortName, state: study.state, hasPreparer: !!study.preparerId }, progress, testers, qualityNotices };
 }
 
 type Result = { ok: boolean; message?: string; errors: Record<string, string> };
@@ -94,6 +96,7 @@ export default function ProgressPage({ loaderData, actionData }: Route.Component
         ) : null}
       </p>
       <FormAlert tone={result?.ok ? "ok" : "fault"} message={navigation.state === "idle" ? result?.message : undefined} />
+      <QualityNotices labId={labId} notices={loaderData.qualityNotices} />
       <section className="grid gap-3 sm:grid-cols-4" data-testid="progress-total">
         <Figure label="Done" value={progress.total.done} />
         <Figure label="In progress" value={progress.total.inProgress} />

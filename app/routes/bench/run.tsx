@@ -22,8 +22,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const view = await benchRunView(lab.id, runId, user.id);
   let choices: Awaited<ReturnType<typeof setupChoices>> | null = null;
   if (view.run.isOwnRun && view.run.state === "waiting") {
-    const [row] = await db().select({ content: protocolVersions.content }).from(runs).innerJoin(studies, eq(studies.id, runs.studyId)).innerJoin(protocolVersions, eq(protocolVersions.id, studies.protocolVersionId)).where(eq(runs.id, runId));
-    choices = await setupChoices(lab.id, row.content);
+    const [row] = await db().select({ content: protocolVersions.content, kind: studies.kind }).from(runs).innerJoin(studies, eq(studies.id, runs.studyId)).innerJoin(protocolVersions, eq(protocolVersions.id, studies.protocolVersionId)).where(eq(runs.id, runId));
+    choices = await setupChoices(lab.id, row.content, row.kind);
   }
   return { labId: lab.id, view, choices };
 }
@@ -230,9 +230,17 @@ function SetupForm({ view, choices, result }: { view: View; choices: Choices; re
           <select id={ids.lot} name="mediaLotId" defaultValue={values.mediaLotId ?? ""} className="min-h-target rounded border border-graphite-400 bg-card px-3 text-lg">
             <option value="">Choose…</option>
             {choices.lots.map((l) => (
-              <option key={l.id} value={l.id}>{l.label}</option>
+              <option key={l.id} value={l.id} disabled={!!l.refusal}>
+                {l.label}
+                {l.refusal ? " (not accepted yet: reference runs missing)" : ""}
+              </option>
             ))}
           </select>
+          {choices.lots
+            .filter((l) => l.refusal)
+            .map((l) => (
+              <p key={l.id} className="text-sm" data-testid="lot-refusal">▲ {l.refusal}</p>
+            ))}
           {choices.lots.length === 0 ? <p className="text-signal">No lot of this protocol's medium is recorded: ask a lead to add one.</p> : null}
           <FieldError id={`${ids.lot}-e`} message={errors.mediaLotId} />
         </div>

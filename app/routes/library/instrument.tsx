@@ -88,6 +88,13 @@ export default function InstrumentPage({ loaderData, actionData }: Route.Compone
         </section>
       </div>
       <PrecisionResults studies={loaderData.precision} />
+      {loaderData.precision.length ? (
+        <p className="mt-3">
+          <a href={`/labs/${lab.id}/instruments/${instrument.id}/repeatability-readings.csv`} download data-testid="precision-csv">
+            Download the repeatability readings (CSV, gf)
+          </a>
+        </p>
+      ) : null}
     </div>
   );
 }

@@ -97,6 +97,13 @@ export default function Quality({ loaderData, actionData }: Route.ComponentProps
       </PageTitle>
       <FormAlert message={actionData?.error ?? undefined} />
       <FormAlert tone="ok" message={actionData?.done ?? undefined} />
+      {references.length ? (
+        <p className="mb-4">
+          <a href={`/labs/${loaderData.lab.id}/quality/reference-readings.csv`} download data-testid="reference-csv">
+            Download the readings of every reference run (CSV)
+          </a>
+        </p>
+      ) : null}
       {references.length === 0 ? (
         <EmptyState title="No reference blade yet">Mark a blade of a known steel and heat treatment as a reference, with the protocol version it is cut under.</EmptyState>
       ) : (

@@ -11,6 +11,8 @@ import { OutcomeDefinition, SecondaryOutcomes } from "~/components/secondary-out
 import { closedAnalysis, requireStudySummaryForResults } from "~/server/analysis/access.server.ts";
 import { armNames, resultsView } from "~/server/analysis/results.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
+import { QualityNotices } from "~/components/quality/quality-notices.tsx";
+import { qualityNoticesForStudy } from "~/server/quality.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Results · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -24,6 +26,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     role,
     study: { id: study.id, shortName: study.shortName, question: study.question, hypothesis: study.hypothesis, state: study.state, closedAt: study.closedAt?.toISOString() ?? null, unblindedAt: study.unblindedAt?.toISOString() ?? null, snapshotHash: study.snapshotHash },
     threshold: (record.protocol?.content as ProtocolContent | undefined)?.edgeForce?.thresholdGf ?? null,
+    qualityNotices: await qualityNoticesForStudy(lab.id, study.id),
   };
   if (!closed) {
     // While the study runs nobody sees outcomes: only how many runs are done.
@@ -48,6 +51,7 @@ export default function StudyResults({ loaderData, actionData }: Route.Component
         Results: {study.shortName} <span className="ml-2 align-middle text-base" data-testid="study-state"><StudyStateBadge state={study.state} /></span>
       </PageTitle>
       <FormAlert message={actionData?.error} />
+      <QualityNotices labId={lab.id} notices={loaderData.qualityNotices} />
       {!loaderData.closed ? (
         <section className="rounded-lg border border-rule bg-card p-5">
           <p className="text-lg">

@@ -83,6 +83,7 @@ const lockedRunColumns = {
   lastReadingHash: runs.lastReadingHash,
   instrumentMax: instruments.maxReading,
   studyState: studies.state,
+  studyKind: studies.kind,
   preparerId: studies.preparerId,
   blindCode: studyBlades.blindCode,
   content: protocolVersions.content,
@@ -291,8 +292,33 @@ export async function benchRunView(labId: string, runId: string, viewerId: strin
 }
 export type BenchRunView = Awaited<ReturnType<typeof benchRunView>>;
 
-/** The media lots and instruments a tester may choose for a run, with calibration flags. */
-export async function setupChoices(labId: string, content: ProtocolContent) {
+/**
+ * Media lot acceptance: a lot that requires N reference runs is refused for study runs until N
+ * reference runs on it have ended (at threshold or censored). Reference runs themselves may use it.
+ * Returns the refusal per lot id (absent: accepted).
+ */
+export async function lotRefusals(tx: Transaction | ReturnType<typeof db>, labId: string, lotIds: string[]) {
+  const out = new Map<string, string>();
+  if (!lotIds.length) return out;
+  const lots = await tx.select({ id: mediaLots.id, lotCode: mediaLots.lotCode, required: mediaLots.requiredReferenceRuns }).from(mediaLots).where(and(eq(mediaLots.labId, labId), inArray(mediaLots.id, lotIds)));
+  const wanting = lots.filter((l) => (l.required ?? 0) > 0);
+  if (!wanting.length) return out;
+  const counts = await tx
+    .select({ lotId: runs.mediaLotId, n: sql<number>`count(*)::int` })
+    .from(runs)
+    .innerJoin(studies, eq(studies.id, runs.studyId))
+    .where(and(eq(runs.labId, labId), eq(studies.kind, "reference"), inArray(runs.mediaLotId, wanting.map((l) => l.id)), inArray(runs.state, ["ended_threshold", "censored"])))
+    .groupBy(runs.mediaLotId);
+  const done = new Map(counts.map((c) => [c.lotId, c.n]));
+  for (const l of wanting) {
+    const n = done.get(l.id) ?? 0;
+    if (n < l.required!) out.set(l.id, `Lot ${l.lotCode} is not accepted for study runs yet: it needs ${l.required} ended reference run(s) and has ${n}. Choose another lot, or ask a lead to have the reference runs cut on it first.`);
+  }
+  return out;
+}
+
+/** The media lots and instruments a tester may choose for a run, with calibration flags and lot acceptance. */
+export async function setupChoices(labId: string, content: ProtocolContent, studyKind: "trial" | "reference" | "precision" = "trial") {
   const wantedInstrument = content.measurementKind === "card_depth" ? "card_machine" : "sharpness_tester";
   const all = await instrumentChoices(labId);
   const lots = await db()
@@ -301,8 +327,9 @@ export async function setupChoices(labId: string, content: ProtocolContent) {
     .innerJoin(media, eq(media.id, mediaLots.mediumId))
     .where(and(eq(mediaLots.labId, labId), content.medium.mediumId ? eq(media.id, content.medium.mediumId) : undefined))
     .orderBy(asc(media.name), asc(mediaLots.lotCode));
+  const refusals = studyKind === "reference" ? new Map<string, string>() : await lotRefusals(db(), labId, lots.map((l) => l.id));
   return {
-    lots: lots.map((l) => ({ id: l.id, label: `${l.mediumName} · lot ${l.lotCode}` })),
+    lots: lots.map((l) => ({ id: l.id, label: `${l.mediumName} · lot ${l.lotCode}`, refusal: refusals.get(l.id) ?? null })),
     instruments: all.filter((i) => i.kind === wantedInstrument).map((i) => ({ id: i.id, name: i.name, flagged: i.calibration.flagged, state: i.calibration.state })),
   };
 }
@@ -374,6 +401,10 @@ export async function startRun(labId: string, runId: string, userId: string, inp
     const content = run.content;
     const [lot] = await tx.select({ id: mediaLots.id, mediumId: mediaLots.mediumId }).from(mediaLots).where(and(eq(mediaLots.id, input.mediaLotId), eq(mediaLots.labId, labId)));
     if (!lot || (content.medium.mediumId && lot.mediumId !== content.medium.mediumId)) errors.mediaLotId = "Choose one of the lots offered for this protocol's medium.";
+    else if (run.studyKind !== "reference") {
+      const refusal = (await lotRefusals(tx, labId, [lot.id])).get(lot.id);
+      if (refusal) errors.mediaLotId = refusal;
+    }
     const wanted = content.measurementKind === "card_depth" ? "card_machine" : "sharpness_tester";
     const instrument = instrumentsOfLab.find((i) => i.id === input.instrumentId && i.kind === wanted);
     if (!instrument) errors.instrumentId = "Choose one of the instruments offered.";

@@ -58,7 +58,8 @@ export async function loadDemoLibrary(tx: Transaction, labId: string, leadId: st
     .insert(mediaLots)
     .values([
       { labId, mediumId: rope.id, lotCode: "MR-2611", receivedOn: daysAgo(90), conditioning: "72 h at 50 % RH, 21 °C" },
-      { labId, mediumId: rope.id, lotCode: "MR-2702", receivedOn: daysAgo(20), conditioning: "72 h at 50 % RH, 21 °C" },
+      // The newest lot waits for its reference runs: the bench refuses it for study runs until three have ended on it.
+      { labId, mediumId: rope.id, lotCode: "MR-2702", receivedOn: daysAgo(20), conditioning: "72 h at 50 % RH, 21 °C", requiredReferenceRuns: 3 },
     ])
     .returning({ id: mediaLots.id });
   const [cardLot] = await tx.insert(mediaLots).values({ labId, mediumId: card.id, lotCode: "SC-0419", receivedOn: daysAgo(45), conditioning: "Sealed pack, opened on the day of testing" }).returning({ id: mediaLots.id });
