@@ -135,7 +135,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
       <Section title="Deviations">
         {details.deviations.length === 0 ? <p>None recorded.</p> : (
           <ul className="list-disc pl-6">
-            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind.replace("_", " ")}{d.category ? ` (${reasonCategoryLabel(d.category)})` : ""}: {d.noteWithheld ? "note hidden until unblinding" : d.note || "—"} ({day(d.at)})</li>)}
+            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind}{d.category ? ` (${reasonCategoryLabel(d.category)})` : ""}: {d.noteWithheld ? "note hidden until unblinding" : d.note || "—"} ({day(d.at)})</li>)}
           </ul>
         )}
       </Section>
