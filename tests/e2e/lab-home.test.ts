@@ -107,7 +107,7 @@ describe("lab home by role", () => {
     const unblinded = page.getByTestId("home-unblinded");
     await unblinded.getByRole("link", { name: /Temper trial T-1/ }).waitFor();
     const nav = page.getByRole("navigation", { name: "Lab" });
-    expect(await nav.getByRole("link").allTextContents()).toEqual(["Home", "Results", "Protocols"]);
+    expect(await nav.getByRole("link").allTextContents()).toEqual(["Home", "Results", "Quality", "Protocols"]);
     expect(await seriousViolations("analyst home")).toEqual([]);
     await nav.getByRole("link", { name: "Results" }).click();
     await page.waitForURL(/\/results$/);

@@ -1,5 +1,5 @@
 import { Form, Link } from "react-router";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import { z } from "zod";
 import type { Route } from "./+types/audit";
 import { PageTitle } from "~/components/form.tsx";
@@ -34,6 +34,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function AuditLog({ loaderData }: Route.ComponentProps) {
+  const { formatDateTime } = useLabDates();
   const { lab, filters, rows, total } = loaderData;
   return (
     <div>
