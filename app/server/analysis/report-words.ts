@@ -34,6 +34,7 @@ const AUDIT_ACTIONS: Record<string, string> = {
   "protocol.created": "Protocol created",
   "protocol.draft_started": "Protocol draft started",
   "protocol.published": "Protocol published",
+  "lab.time_zone_changed": "Lab time zone changed",
 };
 
 /** Words for any raw id: "run.withdrawn_after_end" reads "Run withdrawn after end". */
