@@ -20,6 +20,7 @@ export default [
     route(":labId/members", "routes/labs/members.tsx"),
     route(":labId/invitations", "routes/labs/invitations.tsx"),
     route(":labId/audit", "routes/labs/audit.tsx"),
+    route(":labId/settings", "routes/labs/settings.tsx"),
     route(":labId/quality", "routes/quality/quality.tsx"), // quality (owners, leads, analysts)
     route(":labId/quality/reference-readings.csv", "routes/api/reference-readings-csv.ts"),
     // protocols

@@ -12,10 +12,12 @@ type FieldProps = {
   required?: boolean;
   unit?: string;
   inputMode?: React.HTMLAttributes<HTMLInputElement>["inputMode"];
+  /** The id of a <datalist> of suggestions. */
+  list?: string;
 };
 
 /** A labelled input with its hint and its error message tied to it for screen readers. */
-export function Field({ label, name, type = "text", defaultValue, error, hint, autoComplete, required, unit, inputMode }: FieldProps) {
+export function Field({ label, name, type = "text", defaultValue, error, hint, autoComplete, required, unit, inputMode, list }: FieldProps) {
   const id = useId();
   const hintId = `${id}-hint`;
   const errorId = `${id}-error`;
@@ -39,6 +41,7 @@ export function Field({ label, name, type = "text", defaultValue, error, hint, a
         autoComplete={autoComplete}
         required={required}
         inputMode={inputMode}
+        list={list}
         aria-invalid={error ? true : undefined}
         aria-describedby={describedBy}
         className={`min-h-target rounded border bg-card px-3 text-base ${error ? "border-fault" : "border-graphite-400"}`}

@@ -1,7 +1,7 @@
 import { Link } from "react-router";
 import type { HomeItem, HomeProgress, HomeSection } from "~/server/home.server.ts";
 import { StateBadge } from "./state-badge.tsx";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 
 /** The lab home's "what needs doing now": one section per kind of work, each item a link to where it is done. */
 export function HomeSections({ sections }: { sections: HomeSection[] }) {
@@ -33,6 +33,7 @@ export function HomeSections({ sections }: { sections: HomeSection[] }) {
 }
 
 function HomeRow({ item }: { item: HomeItem }) {
+  const { formatDateTime } = useLabDates();
   if (item.primary) {
     return (
       <li className="py-3" data-testid="home-next-run">

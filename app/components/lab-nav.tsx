@@ -19,7 +19,7 @@ export function labNavItems(labId: string, role: LabRole): NavItem[] {
     { id: "library", label: "Library", to: `${base}/blades`, match: /^\/(blades|media|instruments)/ },
     results,
     quality,
-    { id: "members", label: "Members", to: `${base}/members`, match: /^\/(members|invitations|audit)/ },
+    { id: "members", label: "Members", to: `${base}/members`, match: /^\/(members|invitations|audit|settings)/ },
   ];
 }
 

@@ -141,8 +141,8 @@ export function ResultsTables({ view }: { view: ResultsView }) {
                   <th scope="col" className="py-2 pr-3 text-right">Blades</th>
                   <th scope="col" className="py-2 pr-3 text-right">Mean difference</th>
                   <th scope="col" className="py-2 pr-3">95 % paired t interval</th>
-                  <th scope="col" className="py-2 pr-3 text-right">d_z</th>
-                  <th scope="col" className="py-2 pr-3">95 % interval of d_z</th>
+                  <th scope="col" className="py-2 pr-3 text-right">d<sub>z</sub></th>
+                  <th scope="col" className="py-2 pr-3">95 % interval of d<sub>z</sub></th>
                   <th scope="col" className="py-2 pr-3 text-right">p (paired t)</th>
                   <th scope="col" className="py-2 pr-3 text-right">Holm p (intervals not adjusted)</th>
                   <th scope="col" className="py-2 pr-3">Wilcoxon signed-rank</th>

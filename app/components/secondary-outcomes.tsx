@@ -131,8 +131,8 @@ function SecondarySection({ view }: { view: ResultsView["secondary"][number] }) 
                 <th scope="col" className={num}>Blades</th>
                 <th scope="col" className={num}>Mean difference</th>
                 <th scope="col" className={th}>95 % paired t interval</th>
-                <th scope="col" className={num}>d_z</th>
-                <th scope="col" className={th}>95 % interval of d_z</th>
+                <th scope="col" className={num}>d<sub>z</sub></th>
+                <th scope="col" className={th}>95 % interval of d<sub>z</sub></th>
                 <th scope="col" className={num}>p (paired t)</th>
                 <th scope="col" className={num}>Holm p (within this outcome)</th>
               </tr>

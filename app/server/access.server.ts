@@ -40,7 +40,7 @@ export async function requireLabRole(request: Request, labId: string | undefined
   if (!roles.includes(row.role)) {
     throw data("Your role in this lab does not include this page.", { status: 403 });
   }
-  return { user, role: row.role, lab: { id: row.labId, name: row.labName } };
+  return { user, role: row.role, lab: { id: row.labId, name: row.labName, timeZone: row.timeZone } };
 }
 
 export function isUuid(value: string | undefined): value is string {

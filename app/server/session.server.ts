@@ -39,7 +39,7 @@ async function readSessionId(request: Request): Promise<string | null> {
 export type SessionUser = Pick<User, "id" | "email" | "name"> & { sessionId: string };
 
 /** One lab the signed-in user belongs to, with the role as the database holds it now. */
-export type SessionMembership = { labId: Lab["id"]; labName: Lab["name"]; isDemo: Lab["isDemo"]; role: Membership["role"] };
+export type SessionMembership = { labId: Lab["id"]; labName: Lab["name"]; isDemo: Lab["isDemo"]; timeZone: Lab["timeZone"]; role: Membership["role"] };
 
 export type SignedIn = { user: SessionUser; memberships: SessionMembership[] };
 
@@ -70,6 +70,7 @@ async function lookUpSignedIn(sessionHash: string): Promise<SignedIn | null> {
       labId: labs.id,
       labName: labs.name,
       isDemo: labs.isDemo,
+      timeZone: labs.timeZone,
       role: memberships.role,
     })
     .from(sessions)
@@ -82,8 +83,8 @@ async function lookUpSignedIn(sessionHash: string): Promise<SignedIn | null> {
   if (!first) return null;
   const memberships_: SessionMembership[] = [];
   for (const r of rows) {
-    if (r.labId !== null && r.labName !== null && r.isDemo !== null && r.role !== null) {
-      memberships_.push({ labId: r.labId, labName: r.labName, isDemo: r.isDemo, role: r.role });
+    if (r.labId !== null && r.labName !== null && r.isDemo !== null && r.timeZone !== null && r.role !== null) {
+      memberships_.push({ labId: r.labId, labName: r.labName, isDemo: r.isDemo, timeZone: r.timeZone, role: r.role });
     }
   }
   return { user: { id: first.id, email: first.email, name: first.name, sessionId: first.sessionId }, memberships: memberships_ };

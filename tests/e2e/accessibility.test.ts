@@ -101,7 +101,7 @@ describe("accessibility", () => {
     await scan("sign-up");
   });
 
-  it("the owner's pages: lab home, members, invitations", async () => {
+  it("the owner's pages: lab home, members, invitations, settings", async () => {
     await signInAs(page, "owner@demo.test");
     await page.waitForURL(/\/labs\/[0-9a-f-]{36}$/);
     labUrl = new URL(page.url()).pathname;
@@ -110,6 +110,14 @@ describe("accessibility", () => {
     await scan("members");
     await go(`${labUrl}/invitations`);
     await scan("invitations");
+    await go(`${labUrl}/settings`);
+    await scan("lab settings");
+    // A zone that is not IANA is refused at the form, the message tied to the field.
+    await page.getByLabel("Time zone").fill("Mars/Olympus_Mons");
+    await page.getByRole("button", { name: "Save the settings" }).click();
+    await page.getByText("is not an IANA time zone").waitFor();
+    expect(await page.getByLabel("Time zone").getAttribute("aria-invalid")).toBe("true");
+    await scan("lab settings, refused zone");
   });
 
   it("the lead's pages: library, protocols, studies and their designer, labels, progress, audit, planning", async () => {

@@ -10,6 +10,7 @@ import { randomizationRolls, runEvents, runs, studies } from "~/server/db/schema
 import { recordSimulatedRun } from "~/server/simulated-runs.server.ts";
 import { startStudyTx } from "~/server/studies/randomize.server.ts";
 import { BundleSchema } from "~/domain/bundle.ts";
+import { formatDateTime } from "~/lib/dates.ts";
 
 afterAll(closeDb);
 
@@ -175,7 +176,8 @@ describe("allocation concealment", () => {
     const studyPage = await (await f.lead.client.get(`/labs/${f.labId}/studies/${f.studyId}`)).text();
     expect(studyPage).toContain("typed by the lead");
     expect(studyPage).toMatch(/data-testid="earlier-rolls">2: /);
-    expect(studyPage).toContain(rolls[0].rolledAt.toISOString().slice(0, 16).replace("T", " "));
+    // Shown in the lab's time zone (UTC for a new lab), the zone named.
+    expect(studyPage).toContain(formatDateTime(rolls[0].rolledAt, "UTC"));
 
     await db().transaction((tx) => startStudyTx(tx, f.lead.id, f.labId, f.studyId));
     await simulate(f, (await runRows(f)).map((r) => r.id));

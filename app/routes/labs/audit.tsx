@@ -1,5 +1,5 @@
 import { Form, Link } from "react-router";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import { z } from "zod";
 import type { Route } from "./+types/audit";
 import { PageTitle } from "~/components/form.tsx";
@@ -34,6 +34,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function AuditLog({ loaderData }: Route.ComponentProps) {
+  const { formatDateTime, timeZone } = useLabDates();
   const { lab, filters, rows, total } = loaderData;
   return (
     <div>
@@ -55,7 +56,7 @@ export default function AuditLog({ loaderData }: Route.ComponentProps) {
             <thead>
               <tr className="border-b-2 border-graphite-800">
                 <th scope="col" className="py-2 pr-3">#</th>
-                <th scope="col" className="py-2 pr-3">When (UTC)</th>
+                <th scope="col" className="py-2 pr-3">When ({timeZone})</th>
                 <th scope="col" className="py-2 pr-3">What</th>
                 <th scope="col" className="py-2 pr-3">Who</th>
                 <th scope="col" className="py-2 pr-3">Details</th>

@@ -1,4 +1,4 @@
-import { Form, data } from "react-router";
+import { Form, Link, data } from "react-router";
 import { z } from "zod";
 import type { Route } from "./+types/members";
 import { FormAlert, PageTitle } from "~/components/form.tsx";
@@ -47,6 +47,7 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
       </PageTitle>
       <FormAlert message={actionData?.error ?? undefined} />
       <FormAlert tone="ok" message={actionData?.done ?? undefined} />
+      {canManage ? <p><Link to={`/labs/${loaderData.lab.id}/settings`}>Lab settings: time zone</Link></p> : null}
       <table className="mt-4 w-full border-collapse text-left">
         <thead>
           <tr className="border-b-2 border-graphite-800">

@@ -1,5 +1,5 @@
 import { Form, Link, data, redirect } from "react-router";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import { z } from "zod";
 import type { Route } from "./+types/protocol";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
@@ -58,6 +58,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function ProtocolPage({ loaderData, actionData }: Route.ComponentProps) {
+  const { formatDateTime } = useLabDates();
   const { lab, canWrite, protocolId, name, versions, hasDraft } = loaderData;
   const base = `/labs/${lab.id}/protocols/${protocolId}`;
   const newest = versions[0]?.version;

@@ -1,5 +1,5 @@
 import { Link, data, redirect } from "react-router";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import type { Route } from "./+types/version";
 import { PageTitle } from "~/components/form.tsx";
 import { ProtocolEditor } from "~/components/protocol-editor.tsx";
@@ -87,6 +87,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function VersionPage({ loaderData, actionData }: Route.ComponentProps) {
+  const { formatDateTime } = useLabDates();
   const d = loaderData;
   const base = `/labs/${d.lab.id}/protocols/${d.protocolId}`;
   return (

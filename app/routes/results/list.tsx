@@ -1,6 +1,6 @@
 import { Link } from "react-router";
 import { StudyStateBadge } from "~/components/study-state.tsx";
-import { formatDate } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import type { Route } from "./+types/list";
 import { PageTitle } from "~/components/form.tsx";
 import { EmptyState } from "~/components/table.tsx";
@@ -17,6 +17,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function ResultsList({ loaderData }: Route.ComponentProps) {
+  const { formatDate } = useLabDates();
   const { lab } = loaderData;
   return (
     <div>

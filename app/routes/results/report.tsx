@@ -10,6 +10,7 @@ import { reasonCategoryLabel } from "~/domain/reason-categories.ts";
 import { outcomeLabel } from "~/server/analysis/report-words.ts";
 import { reportCharts } from "~/server/analysis/report-charts.server.ts";
 import { ReportCharts } from "~/components/report-charts.tsx";
+import { formatDateTime } from "~/lib/dates.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Report · ${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -33,11 +34,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const day = (iso: string | null) => (iso ? iso.slice(0, 16).replace("T", " ") + " UTC" : "—");
-
 export default function Report({ loaderData }: Route.ComponentProps) {
   const { lab, study, arms, view, details } = loaderData;
   const r = details.randomization;
+  // Every time in the lab's time zone, the zone named beside it.
+  const day = (iso: string | null) => (iso ? formatDateTime(iso, lab.timeZone) : "—");
   return (
     <article className="report mx-auto max-w-4xl print:max-w-none">
       <p className="mb-4 print:hidden">
@@ -135,7 +136,7 @@ export default function Report({ loaderData }: Route.ComponentProps) {
       <Section title="Deviations">
         {details.deviations.length === 0 ? <p>None recorded.</p> : (
           <ul className="list-disc pl-6">
-            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind.replace("_", " ")}{d.category ? ` (${reasonCategoryLabel(d.category)})` : ""}: {d.noteWithheld ? "note hidden until unblinding" : d.note || "—"} ({day(d.at)})</li>)}
+            {details.deviations.map((d, i) => <li key={i}>Run {d.run} (blade {d.bladeCode}), {d.kind}{d.category ? ` (${reasonCategoryLabel(d.category)})` : ""}: {d.noteWithheld ? "note hidden until unblinding" : d.note || "—"} ({day(d.at)})</li>)}
           </ul>
         )}
       </Section>

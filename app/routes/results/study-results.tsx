@@ -1,6 +1,6 @@
 import { Form, Link } from "react-router";
 import { StudyStateBadge } from "~/components/study-state.tsx";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import { studyLifecycleAction } from "~/server/analysis/lifecycle-action.server.ts";
 import type { Route } from "./+types/study-results";
 import { FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
@@ -42,6 +42,7 @@ export function action({ request, params }: Route.ActionArgs) {
 
 
 export default function StudyResults({ loaderData, actionData }: Route.ComponentProps) {
+  const { formatDateTime } = useLabDates();
   const { lab, study, role, view } = loaderData;
   const manager = role === "owner" || role === "lead";
   const base = `/labs/${lab.id}/studies/${study.id}`;

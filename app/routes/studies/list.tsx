@@ -1,5 +1,5 @@
 import { Link } from "react-router";
-import { formatDate } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import type { Route } from "./+types/list";
 import { PageTitle } from "~/components/form.tsx";
 import { EmptyState } from "~/components/table.tsx";
@@ -18,6 +18,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function StudyList({ loaderData }: Route.ComponentProps) {
+  const { formatDate } = useLabDates();
   const { lab, studies, memberCount, testerCount } = loaderData;
   return (
     <div>

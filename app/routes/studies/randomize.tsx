@@ -1,5 +1,5 @@
 import { Form, Link, data, redirect } from "react-router";
-import { formatDateTime } from "~/lib/dates.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 import { studyOfLab } from "~/server/analysis/access.server.ts";
 import type { Route } from "./+types/randomize";
 import { Field, FormAlert, PageTitle, SubmitButton } from "~/components/form.tsx";
@@ -74,6 +74,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function Randomize({ loaderData, actionData }: Route.ComponentProps) {
+  const { formatDateTime } = useLabDates();
   const d = loaderData;
   const base = `/labs/${d.lab.id}/studies/${d.study.id}`;
   const failure = actionData && !actionData.ok ? actionData : null;

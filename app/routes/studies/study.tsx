@@ -8,6 +8,7 @@ import { MANAGERS, requireLabRole } from "~/server/access.server.ts";
 import { getDesigner, studyIdParam } from "~/server/studies/designer.server.ts";
 import { DESIGN_LABELS } from "~/lib/study-input.ts";
 import { rollHistory } from "~/server/studies/rolls.server.ts";
+import { useLabDates } from "~/lib/use-lab-dates.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.study.shortName ?? "Study"} · Blindcut` }];
 
@@ -30,6 +31,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 const action = "inline-flex min-h-target items-center rounded border border-graphite-800 bg-card px-4 font-bold no-underline text-graphite-950 hover:bg-paper-deep";
 
 export default function StudyPage({ loaderData }: Route.ComponentProps) {
+  const { formatDateTime } = useLabDates();
   const { lab, study, steps, problems, started, mailFailed, rolls } = loaderData;
   const base = `/labs/${lab.id}/studies/${study.id}`;
   return (
@@ -67,8 +69,8 @@ export default function StudyPage({ loaderData }: Route.ComponentProps) {
             <dd data-testid="seed-source">{study.seedSource === "server" ? "drawn by the server (cryptographic random)" : study.seedSource === "typed" ? "typed by the lead" : "not recorded"}</dd>
             <dt className="font-bold">Rolls before the final one</dt>
             <dd data-testid="earlier-rolls">
-              {rolls.earlier.length === 0 ? "none" : `${rolls.earlier.length}: ${rolls.earlier.map((r) => r.at.slice(0, 16).replace("T", " ") + " UTC").join(", ")}`}
-              {rolls.finalAt ? ` · final roll ${rolls.finalAt.slice(0, 16).replace("T", " ")} UTC` : ""}
+              {rolls.earlier.length === 0 ? "none" : `${rolls.earlier.length}: ${rolls.earlier.map((r) => formatDateTime(r.at)).join(", ")}`}
+              {rolls.finalAt ? ` · final roll ${formatDateTime(rolls.finalAt)}` : ""}
             </dd>
             <dt className="font-bold">Algorithm version</dt>
             <dd>{study.algorithmVersion}</dd>

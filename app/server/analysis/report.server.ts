@@ -3,7 +3,7 @@ import { db } from "../db.server.ts";
 import { auditEvents, users } from "../db/schema/index.ts";
 import type { StudyRecord } from "./study-data.server.ts";
 import type { ProtocolContent } from "~/domain/protocol.ts";
-import { describeStopRule } from "./report-words.ts";
+import { auditActionLabel, describeStopRule, eventKindLabel } from "./report-words.ts";
 import { visibleEventNote } from "./study-data.server.ts";
 
 /** Everything the printable study report shows besides the results tables. */
@@ -24,7 +24,7 @@ export async function reportDetails(record: StudyRecord) {
       const run = runById.get(e.runId)!;
       // A lead's note waits for unblinding; the category is always shown.
       const note = visibleEventNote(study, e, run);
-      return { kind: e.kind, category: e.category, note, noteWithheld: note === null, at: e.enteredAt.toISOString(), run: run.schedulePosition, bladeCode: code.get(run.studyBladeId) ?? "" };
+      return { kind: eventKindLabel(e.kind), category: e.category, note, noteWithheld: note === null, at: e.enteredAt.toISOString(), run: run.schedulePosition, bladeCode: code.get(run.studyBladeId) ?? "" };
     });
   const unblinded = study.state === "unblinded";
   // Every withdrawal of a run that had already ended, on its own (an owner's decision).
@@ -49,6 +49,6 @@ export async function reportDetails(record: StudyRecord) {
       settings: study.randomization, seed: study.seed, algorithmVersion: study.algorithmVersion, designHash: study.designHash, scheduleHash: study.scheduleHash, snapshotHash: study.snapshotHash },
     deviations,
     calibration: { runsOnFlaggedInstrument: flagged, runsWithInstrument: record.runs.filter((r) => r.instrumentId).length },
-    audit: audit.map((a) => ({ action: a.action, at: a.at.toISOString(), actor: a.actor ?? "system", hash: a.hash })),
+    audit: audit.map((a) => ({ action: auditActionLabel(a.action), at: a.at.toISOString(), actor: a.actor ?? "system", hash: a.hash })),
   };
 }

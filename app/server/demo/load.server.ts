@@ -11,6 +11,8 @@ import { loadDemoProtocols } from "./protocols.server.ts";
 import { loadDemoQuality } from "./quality.server.ts";
 
 export const DEMO_LAB_NAME = "Demo Edge Lab (invented)";
+/** The demo lab keeps its times in a zone other than UTC, so its pages show the lab's zone at work. */
+export const DEMO_TIME_ZONE = "Europe/Berlin";
 
 /** Creates the invented demo lab once; every part of it is generated and labelled as invented. */
 export async function loadDemoData(): Promise<{ created: boolean; labId: string }> {
@@ -18,7 +20,7 @@ export async function loadDemoData(): Promise<{ created: boolean; labId: string 
   if (existing[0]) return { created: false, labId: existing[0].id };
   const hashes = await Promise.all(DEMO_ACCOUNTS.map(() => hashPassword(DEMO_PASSWORD)));
   return db().transaction(async (tx) => {
-    const [lab] = await tx.insert(labs).values({ name: DEMO_LAB_NAME, isDemo: true }).returning();
+    const [lab] = await tx.insert(labs).values({ name: DEMO_LAB_NAME, isDemo: true, timeZone: DEMO_TIME_ZONE }).returning();
     await recordAudit(tx, { labId: lab.id, actorId: null, action: "lab.created", objectType: "lab", objectId: lab.id, details: { demo: true } });
     const people: Record<string, string> = {};
     for (const [i, account] of DEMO_ACCOUNTS.entries()) {

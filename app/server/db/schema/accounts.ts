@@ -8,6 +8,8 @@ export const labs = pgTable("labs", {
   id: uuid("id").primaryKey().defaultRandom(),
   name: text("name").notNull(),
   isDemo: boolean("is_demo").notNull().default(false),
+  /** The lab's IANA time zone: every date and time on its pages is shown in it. */
+  timeZone: text("time_zone").notNull().default("UTC"),
   createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
 });
 

@@ -1,0 +1,1 @@
+ALTER TABLE "labs" ADD COLUMN "time_zone" text DEFAULT 'UTC' NOT NULL;
