@@ -21,6 +21,16 @@ if (process.env.NODE_ENV === "production" && !process.env.APP_URL && process.env
 const app = express();
 app.disable("x-powered-by");
 app.set("trust proxy", process.env.TRUST_PROXY === "1" ? 1 : false);
+// A response sent before its request body was read (a 413, a 405) closes the connection: the
+// unread rest of the body would otherwise be taken for the next request on a kept-alive socket.
+app.use((req, res, next) => {
+  const writeHead = res.writeHead;
+  res.writeHead = function (...args) {
+    if (!req.complete && !res.headersSent) res.setHeader("Connection", "close");
+    return writeHead.apply(this, args);
+  };
+  next();
+});
 
 app.use((_req, res, next) => {
   res.locals.cspNonce = randomBytes(16).toString("base64");
