@@ -225,9 +225,10 @@ function SetupForm({ view, choices, result }: { view: View; choices: Choices; re
 
       <fieldset className="grid gap-4 sm:grid-cols-2">
         <legend className="mb-2 text-xl font-bold">4. Media, instrument and room</legend>
-        <div className="flex flex-col gap-1">
+        {/* min-w-0 and w-full: a long lot or instrument name wraps in the page instead of widening it on a phone. */}
+        <div className="flex min-w-0 flex-col gap-1">
           <label htmlFor={ids.lot} className="font-bold">Media lot</label>
-          <select id={ids.lot} name="mediaLotId" defaultValue={values.mediaLotId ?? ""} className="min-h-target rounded border border-graphite-400 bg-card px-3 text-lg">
+          <select id={ids.lot} name="mediaLotId" defaultValue={values.mediaLotId ?? ""} className="min-h-target w-full min-w-0 rounded border border-graphite-400 bg-card px-3 text-lg">
             <option value="">Choose…</option>
             {choices.lots.map((l) => (
               <option key={l.id} value={l.id} disabled={!!l.refusal}>
@@ -244,9 +245,9 @@ function SetupForm({ view, choices, result }: { view: View; choices: Choices; re
           {choices.lots.length === 0 ? <p className="text-signal">No lot of this protocol's medium is recorded: ask a lead to add one.</p> : null}
           <FieldError id={`${ids.lot}-e`} message={errors.mediaLotId} />
         </div>
-        <div className="flex flex-col gap-1">
+        <div className="flex min-w-0 flex-col gap-1">
           <label htmlFor={ids.instrument} className="font-bold">Instrument</label>
-          <select id={ids.instrument} name="instrumentId" value={instrumentId} onChange={(e) => setInstrumentId(e.currentTarget.value)} className="min-h-target rounded border border-graphite-400 bg-card px-3 text-lg">
+          <select id={ids.instrument} name="instrumentId" value={instrumentId} onChange={(e) => setInstrumentId(e.currentTarget.value)} className="min-h-target w-full min-w-0 rounded border border-graphite-400 bg-card px-3 text-lg">
             <option value="">Choose…</option>
             {choices.instruments.map((i) => (
               <option key={i.id} value={i.id}>
