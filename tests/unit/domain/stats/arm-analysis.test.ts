@@ -28,11 +28,13 @@ suite("parallel arms, blade as the unit", () => {
     expect(r.nRuns).toBe(18);
   });
   it("compares blade means, not runs", () => {
+    // Source: the Welch t of the blade means computed directly (welchT, itself checked against R's documented Welch example in t-tests.test.ts); blade means by hand: A 110, 95, 140; B 70, 80, 55.
     const c = r.comparisons!.value!.comparisons[0];
     expect(c.welch.t).toBeCloseTo(welchT([110, 95, 140], [70, 80, 55]).t, 12);
     expect(c.welch.nX).toBe(3);
   });
   it("flags the censored run: lower bound and the share of censored runs", () => {
+    // Hand-computed: 1 censored run of the 9 runs of arm A is 1/9 = 11.1 %; a capped value makes the arm mean a lower bound (Royston & Parmar 2013, BMC Med Res Methodol 13:152).
     const a = r.arms.find((x) => x.arm === "A")!;
     expect(a.lowerBound).toBe(true);
     expect(a.nCensoredRuns).toBe(1);
@@ -41,12 +43,14 @@ suite("parallel arms, blade as the unit", () => {
     expect(r.arms.find((x) => x.arm === "B")!.lowerBound).toBe(false);
   });
   it("Kaplan-Meier and log-rank on runs, with the note on replicates", () => {
+    // Source: the log-rank test of two groups has 1 df (Cox & Oakes 1984, Analysis of Survival Data, ch. 4, from memory); replicates of one blade are not independent runs (common practice).
     expect(r.survival!.curves.length).toBe(2);
     expect(r.survival!.logRank!.value!.df).toBe(1);
     expect(r.survival!.note).toMatch(/not independent/);
     expect(r.arms[0].bootstrap.value!.seed).toBe("s1/A");
   });
   it("an undefined figure comes back as null with its reason, never NaN", () => {
+    // Hand-computed: two equal blade values have SD 0, so no t-interval exists; 2 of 2 runs censored is a share of 1.
     const flat = analyzeParallelArms([run("x1", "A", 60, true), run("x2", "A", 60, true), run("y1", "B", 40), run("y2", "B", 50)], { seed: "z", resamples: 200 });
     const a = flat.arms.find((x) => x.arm === "A")!;
     expect(a.tInterval.value).toBeNull();
@@ -54,6 +58,7 @@ suite("parallel arms, blade as the unit", () => {
     expect(a.censoredShare).toBe(1);
   });
   it("rejects a blade in two arms and bad records", () => {
+    // Input checks only: no computed value is compared here (common practice: a parallel design puts each blade in one arm).
     expect(() => analyzeParallelArms([run("b1", "A", 1), run("b1", "B", 2)], { seed: "s" })).toThrow(/appears in two arms/);
     expect(() => analyzeParallelArms([run("b1", "A", Number.NaN)], { seed: "s" })).toThrow(/not a finite number/);
     expect(() => analyzeParallelArms([], { seed: "s" })).toThrow(/at least one run/);

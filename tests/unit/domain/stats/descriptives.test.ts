@@ -32,10 +32,12 @@ suite("descriptives", () => {
     expectRel(quantile(x, 1), ss.quantile(x, 1), 1e-12);
   });
   it("is accurate for values with a large common offset", () => {
+    // Hand-computed: 4, 7, 13, 16 have mean 10 and squared deviations 36 + 9 + 9 + 36 = 90, so the variance is 90 / 3 = 30; the offset of 1e9 must not change it.
     const x = [1e9 + 4, 1e9 + 7, 1e9 + 13, 1e9 + 16];
     expect(sampleVariance(x)).toBeCloseTo(30, 6); // variance of 4,7,13,16 is 30 by hand
   });
   it("rejects bad input by name", () => {
+    // Input checks only: a mean needs 1 value and a sample SD 2 (n - 1 in the denominator; from memory, any statistics text).
     expect(() => mean([])).toThrow(/at least 1 value/);
     expect(() => sampleSD([3])).toThrow(/at least 2 values/);
     expect(() => median([1, Number.NaN])).toThrow(/not a finite number/);

@@ -41,6 +41,7 @@ suite("two-factor study with one run per unit", () => {
 
 suite("two-factor study with replicate runs per blade", () => {
   it("the blade mixed model keeps the between-blade F tests on the blade df", () => {
+    // Hand-computed: 36 blades in 9 cells leave 36 - 9 = 27 between-blade df for the factor tests (containment; Satterthwaite equals it when every blade has the same number of runs).
     const twice = runs.flatMap((x, i) => [x, { ...x, value: x.value + ((i * 7) % 5) - 2 }]);
     const r = fitFactorialModel(twice, factors);
     expect(r.fit.dfMethod).toBe("Satterthwaite");
@@ -82,10 +83,12 @@ suite("an unbalanced factorial with replicates, against R's lmerTest", () => {
 
 suite("bad factorial input", () => {
   it("a cell without blades is named", () => {
+    // Input check only: no computed value is compared here.
     const gap = runs.filter((x) => !(x.cell.material === "2" && x.cell.temperature === "70"));
     expect(() => fitFactorialModel(gap, factors)).toThrow(/the cell "material = 2 × temperature = 70" has no blades/);
   });
   it("unknown levels, a blade in two cells, three factors", () => {
+    // Input checks only: no computed value is compared here.
     expect(() => fitFactorialModel([...runs, { bladeId: "x", value: 1, cell: { material: "4", temperature: "15" } }], factors)).toThrow(/unknown level "4" of factor "material"/);
     expect(() => fitFactorialModel([...runs, { ...runs[0], cell: { material: "2", temperature: "15" } }], factors)).toThrow(/unit-0 has runs in two cells/);
     expect(() => fitFactorialModel(runs, [...factors, { name: "finish", levels: ["a", "b"] }])).toThrow(/one or two factors/);
