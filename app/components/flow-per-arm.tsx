@@ -2,20 +2,10 @@
 // flow diagram drawn on the server as boxes and arrows (report). Arms appear under
 // their neutral labels until unblinding; names are added beside them afterwards.
 import { reasonCategoryLabel } from "~/domain/reason-categories.ts";
+import type { ArmFlow } from "~/domain/study-analysis.ts";
 
-export type ArmFlowRow = {
-  arm: { key: string; name: string | null };
-  bladesEnrolled: number;
-  runsScheduled: number;
-  failedSharpeningAttempts: number;
-  endedAtThreshold: number;
-  censored: number;
-  withdrawn: number;
-  withdrawnByCategory: { category: string; runs: number }[];
-  excluded: number;
-  runsAnalysed: number;
-  bladesAnalysed: number;
-};
+/** One arm's flow as the domain counts it (ArmFlow), with its display name beside the neutral label. */
+export type ArmFlowRow = Omit<ArmFlow, "armKey"> & { arm: { key: string; name: string | null } };
 
 const armTitle = (a: ArmFlowRow["arm"]) => (a.name ? `${a.key} · ${a.name}` : a.key);
 const categories = (f: ArmFlowRow) => (f.withdrawnByCategory.length ? f.withdrawnByCategory.map((c) => `${reasonCategoryLabel(c.category)}: ${c.runs}`).join("; ") : "—");
