@@ -60,11 +60,12 @@ async function runCounts(studyIds: string[]) {
   return out;
 }
 
+// Trials only, as on the studies list: reference series and precision studies belong to the quality page.
 async function runningStudies(labId: string) {
   const rows = await db()
     .select({ id: studies.id, shortName: studies.shortName, startedAt: studies.startedAt })
     .from(studies)
-    .where(and(eq(studies.labId, labId), eq(studies.state, "running")))
+    .where(and(eq(studies.labId, labId), eq(studies.kind, "trial"), eq(studies.state, "running")))
     .orderBy(asc(studies.startedAt));
   return { rows, counts: await runCounts(rows.map((r) => r.id)) };
 }
@@ -133,7 +134,7 @@ const drafts: SectionBuilder = {
     const rows = await db()
       .select({ id: studies.id })
       .from(studies)
-      .where(and(eq(studies.labId, labId), eq(studies.state, "draft")))
+      .where(and(eq(studies.labId, labId), eq(studies.kind, "trial"), eq(studies.state, "draft")))
       .orderBy(desc(studies.updatedAt))
       .limit(10);
     const items: HomeItem[] = [];
@@ -257,7 +258,7 @@ const awaitingAnalysis: SectionBuilder = {
     const rows = await db()
       .select({ id: studies.id, shortName: studies.shortName, closedAt: studies.closedAt })
       .from(studies)
-      .where(and(eq(studies.labId, labId), eq(studies.state, "closed")))
+      .where(and(eq(studies.labId, labId), eq(studies.kind, "trial"), eq(studies.state, "closed")))
       .orderBy(desc(studies.closedAt));
     return {
       id: "awaiting-analysis",
@@ -274,7 +275,7 @@ const recentlyUnblinded: SectionBuilder = {
     const rows = await db()
       .select({ id: studies.id, shortName: studies.shortName, unblindedAt: studies.unblindedAt })
       .from(studies)
-      .where(and(eq(studies.labId, labId), eq(studies.state, "unblinded")))
+      .where(and(eq(studies.labId, labId), eq(studies.kind, "trial"), eq(studies.state, "unblinded")))
       .orderBy(desc(studies.unblindedAt))
       .limit(RECENT_UNBLIND_COUNT);
     return {
