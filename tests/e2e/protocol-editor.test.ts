@@ -46,7 +46,13 @@ describe("protocol editor", () => {
     await page.keyboard.press("Space");
     await expect.poll(() => page.locator('[data-list="steps"] > li[data-dragging="true"]').count()).toBe(1);
     const heard = () => page.locator('[id^="DndLiveRegion"]').allTextContents().then((t) => t.join(" "));
-    await page.keyboard.press("ArrowDown");
+    // The keyboard sensor listens for arrows only from a moment after the pick-up (it attaches its
+    // listener in a timeout), so an arrow pressed in that moment is lost: press again until the
+    // board says the step moved. A lost press moves nothing, so this never overshoots.
+    for (let tries = 0; tries < 5 && !/is over position 2 of 3/.test(await heard()); tries++) {
+      await page.keyboard.press("ArrowDown");
+      for (let wait = 0; wait < 20 && !/is over position 2 of 3/.test(await heard()); wait++) await page.waitForTimeout(100);
+    }
     // Drop only once the board says the step is over position 2, as a screen-reader user would.
     await expect.poll(heard, { timeout: 10_000 }).toMatch(/is over position 2 of 3/);
     await page.keyboard.press("Space");
